@@ -1,0 +1,82 @@
+/* crustforge: steady and transient thermal and melt structure beneath a spreading ridge. */
+#include <string.h>
+#include <crustforge/app.h>
+#include <crustforge/config.h>
+#include "crustforge_version.h"
+
+static const char help[] = "crustforge: 2-D thermal and melt model of the mantle beneath a spreading ridge.\n"
+                           "Usage: crustforge run SCENARIO.yaml [-section_key value ...] [PETSc options]\n"
+                           "       crustforge --help | --version\n\n";
+
+static void Usage(FILE *fp)
+{
+  fputs(help, fp);
+  fputs("Commands:\n"
+        "  run SCENARIO.yaml      solve the steady state and write the run to output.dir\n"
+        "  resume CHECKPOINT.h5   continue a transient run from a checkpoint\n"
+        "  sweep SWEEP.yaml       solve a grid of cases (rate x temperature x water)\n"
+        "Any scenario key may be given on the command line as -section_key value; it overrides the\n"
+        "file.  PETSc's own options (-snes_*, -ksp_*, -pc_*, -log_view) work as usual.\n"
+        "Exit status: 0 success, 2 bad input or refused request, 3 solver did not converge,\n"
+        "4 interrupted after a checkpoint, 1 anything else.\n\n",
+        fp);
+}
+
+/* Raised here, not in main: PETSc aborts MPI (exit 95, no message) for an error raised in main. */
+static PetscErrorCode NotAvailable(const char cmd[])
+{
+  PetscFunctionBeginUser;
+  SETERRQ(PETSC_COMM_WORLD, PETSC_ERR_USER_INPUT, "%s: not available yet", cmd);
+}
+
+static PetscErrorCode Run(int argc, char **argv)
+{
+  CFConfig cfg;
+
+  PetscFunctionBeginUser;
+  PetscCheck(argc >= 3 && argv[2][0] != '-', PETSC_COMM_WORLD, PETSC_ERR_USER_INPUT, "run: no scenario file given (usage: crustforge run SCENARIO.yaml [-key value ...])");
+  PetscCall(CFConfigLoad(PETSC_COMM_WORLD, argv[2], argc, argv, &cfg));
+  PetscCall(CFRunSteady(PETSC_COMM_WORLD, &cfg));
+  PetscFunctionReturn(0);
+}
+
+int main(int argc, char **argv)
+{
+  PetscErrorCode ierr;
+  const char    *cmd = argc > 1 ? argv[1] : "";
+  int            status;
+  PetscBool      traceback = PETSC_FALSE;
+
+  if (!strcmp(cmd, "--help") || !strcmp(cmd, "-h") || !strcmp(cmd, "help")) {
+    Usage(stdout);
+    CFConfigPrintKeys(stdout);
+    return CF_EXIT_OK;
+  }
+  if (!strcmp(cmd, "--version")) {
+    printf("crustforge %s (revision %s)\n", CRUSTFORGE_VERSION, CRUSTFORGE_REVISION);
+    return CF_EXIT_OK;
+  }
+  if (strcmp(cmd, "run") && strcmp(cmd, "resume") && strcmp(cmd, "sweep")) {
+    Usage(stderr);
+    fprintf(stderr, "crustforge: %s%s%s\n", cmd[0] ? "unknown command '" : "no command given", cmd, cmd[0] ? "'" : "");
+    return CF_EXIT_INPUT;
+  }
+
+  ierr = PetscInitialize(&argc, &argv, NULL, help);
+  if (ierr) return CF_EXIT_INTERNAL;
+  /* One line per error unless a developer asks for PETSc's traceback. */
+  if (PetscOptionsGetBool(NULL, NULL, "-debug_traceback", &traceback, NULL)) traceback = PETSC_FALSE;
+  if (!traceback) PetscPushErrorHandler(PetscReturnErrorHandler, NULL);
+
+  if (!strcmp(cmd, "run")) ierr = Run(argc, argv);
+  else ierr = NotAvailable(cmd);
+  status = CFExitStatus(ierr);
+  if (ierr) {
+    PetscMPIInt rank = 0;
+    MPI_Comm_rank(PETSC_COMM_WORLD, &rank);
+    if (!rank) CFReportError("crustforge", ierr);
+  }
+  if (!traceback) PetscPopErrorHandler();
+  PetscFinalize();
+  return status;
+}

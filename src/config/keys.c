@@ -1,0 +1,68 @@
+/* The scenario key table: every key a scenario may set, with its unit, default, allowed range
+   and the source of the default.  Loading, validation, --help and the parameter printout are all
+   driven from this one table (src/config/config.c). */
+#include <stddef.h>
+#include "keys.h"
+
+#define F(field) offsetof(CFConfig, field), sizeof(((CFConfig *)0)->field)
+#define NOSET    ((size_t)-1)
+
+const CFKey CFKeys[] = {
+  {"ridge", "full_spreading_rate", "mm/yr", CF_KEY_REAL, CF_CONV_NONE, "60", 0, 300, PETSC_TRUE, PETSC_FALSE, F(full_spreading_rate_mm_yr), NOSET,
+   "full spreading rate, both plates together (default: an intermediate ridge, common practice, no source)"},
+
+  {"mantle", "potential_temperature", "C", CF_KEY_REAL, CF_CONV_CELSIUS, "1350", 1000, 1800, PETSC_FALSE, PETSC_FALSE, F(potential_temperature), NOSET,
+   "mantle potential temperature (Herzberg, Condie & Korenaga 2010, EPSL 292)"},
+  {"mantle", "water", "ppm", CF_KEY_REAL, CF_CONV_NONE, "0", 0, 5000, PETSC_FALSE, PETSC_FALSE, F(water_ppm), NOSET,
+   "bulk water in the mantle, H2O by weight (dry by default; MORB source is of order 50-200 ppm)"},
+  {"mantle", "density", "kg/m3", CF_KEY_REAL, CF_CONV_NONE, "3300", 2500, 4500, PETSC_FALSE, PETSC_FALSE, F(mantle_density), NOSET,
+   "mantle density (Turcotte & Schubert, Geodynamics; Wangen 2010)"},
+  {"mantle", "heat_capacity", "J/kg/K", CF_KEY_REAL, CF_CONV_NONE, "1000", 500, 2000, PETSC_FALSE, PETSC_FALSE, F(heat_capacity), NOSET,
+   "specific heat capacity (Katz, Spiegelman & Langmuir 2003, Table 2)"},
+  {"mantle", "conductivity", "W/m/K", CF_KEY_REAL, CF_CONV_NONE, "3.3", 0.5, 20, PETSC_FALSE, PETSC_FALSE, F(conductivity), NOSET,
+   "thermal conductivity; with the defaults kappa = 1e-6 m2/s (Wangen 2010)"},
+  {"mantle", "thermal_expansivity", "1/K", CF_KEY_REAL, CF_CONV_NONE, "3e-5", 0, 1e-4, PETSC_FALSE, PETSC_FALSE, F(thermal_expansivity), NOSET,
+   "volumetric thermal expansivity (Wangen 2010; Turcotte & Schubert)"},
+  {"mantle", "adiabatic_gradient", "K/km", CF_KEY_REAL, CF_CONV_PER_KM, "derived", 0, 2, PETSC_FALSE, PETSC_FALSE, F(adiabatic_gradient), offsetof(CFConfig, adiabatic_gradient_set),
+   "adiabatic temperature gradient; default alpha g Tp / cp with Tp in K (Turcotte & Schubert, adiabatic compression)"},
+
+  {"crust", "density", "kg/m3", CF_KEY_REAL, CF_CONV_NONE, "2900", 2000, 3300, PETSC_FALSE, PETSC_FALSE, F(crust_density), NOSET,
+   "density of the igneous crust (common practice, no source)"},
+  {"ocean", "water_density", "kg/m3", CF_KEY_REAL, CF_CONV_NONE, "1030", 900, 1100, PETSC_FALSE, PETSC_FALSE, F(water_density), NOSET,
+   "seawater density for isostasy (common practice, no source)"},
+
+  {"surface", "temperature", "C", CF_KEY_REAL, CF_CONV_CELSIUS, "0", -10, 50, PETSC_FALSE, PETSC_FALSE, F(surface_temperature), NOSET,
+   "seafloor temperature (common practice, no source)"},
+  {"constants", "gravity", "m/s2", CF_KEY_REAL, CF_CONV_NONE, "9.81", 1, 30, PETSC_FALSE, PETSC_FALSE, F(gravity), NOSET,
+   "gravitational acceleration (standard value)"},
+
+  {"grid", "width", "km", CF_KEY_REAL, CF_CONV_KM, "400", 0, 10000, PETSC_TRUE, PETSC_FALSE, F(width), NOSET,
+   "distance from the ridge axis to the far side of the domain"},
+  {"grid", "depth", "km", CF_KEY_REAL, CF_CONV_KM, "200", 0, 2000, PETSC_TRUE, PETSC_FALSE, F(depth), NOSET,
+   "depth of the domain below the seafloor"},
+  {"grid", "spacing", "km", CF_KEY_REAL, CF_CONV_KM, "1", 0, 100, PETSC_TRUE, PETSC_FALSE, F(spacing), NOSET,
+   "cell size in both directions (rounded so that a whole number of cells fits)"},
+
+  {"hydrothermal", "nusselt", "1", CF_KEY_REAL, CF_CONV_NONE, "8", 1, 100, PETSC_FALSE, PETSC_FALSE, F(nusselt), NOSET,
+   "conductivity factor where seawater circulates; 1 turns hydrothermal cooling off (Phipps Morgan & Chen 1993, JGR 98, from memory)"},
+  {"hydrothermal", "temperature_cutoff", "C", CF_KEY_REAL, CF_CONV_CELSIUS, "600", 100, 1200, PETSC_FALSE, PETSC_FALSE, F(hydrothermal_temperature_cutoff), NOSET,
+   "temperature above which circulation stops (Phipps Morgan & Chen 1993, from memory)"},
+  {"hydrothermal", "depth_cutoff", "km", CF_KEY_REAL, CF_CONV_KM, "6", 0, 50, PETSC_TRUE, PETSC_FALSE, F(hydrothermal_depth_cutoff), NOSET,
+   "depth below which circulation stops (a few km: Phipps Morgan & Chen 1993, from memory)"},
+  {"hydrothermal", "temperature_width", "C", CF_KEY_REAL, CF_CONV_NONE, "100", 0, 500, PETSC_TRUE, PETSC_FALSE, F(hydrothermal_temperature_width), NOSET,
+   "width of the smooth switch in temperature, so that Newton converges (common practice, no source)"},
+  {"hydrothermal", "depth_width", "km", CF_KEY_REAL, CF_CONV_KM, "1", 0, 20, PETSC_TRUE, PETSC_FALSE, F(hydrothermal_depth_width), NOSET,
+   "width of the smooth switch in depth (common practice, no source)"},
+
+  {"melting", "model", "", CF_KEY_STRING, CF_CONV_NONE, "katz2003", 0, 0, PETSC_FALSE, PETSC_FALSE, F(melting_model), NOSET,
+   "melting model: katz2003 (Katz, Spiegelman & Langmuir 2003) or linear (verification)"},
+  {"melting", "entropy_of_fusion", "J/kg/K", CF_KEY_REAL, CF_CONV_NONE, "300", 0, 1000, PETSC_FALSE, PETSC_FALSE, F(entropy_of_fusion), NOSET,
+   "entropy of fusion; latent heat is T dS; 0 turns latent heat off (Katz, Spiegelman & Langmuir 2003, Table 2)"},
+
+  {"output", "dir", "", CF_KEY_STRING, CF_CONV_NONE, "crustforge-output", 0, 0, PETSC_FALSE, PETSC_FALSE, F(output_dir), NOSET,
+   "directory for the run's files; created, never overwritten unless output.overwrite"},
+  {"output", "overwrite", "", CF_KEY_BOOL, CF_CONV_NONE, "false", 0, 0, PETSC_FALSE, PETSC_FALSE, F(output_overwrite), NOSET,
+   "allow writing into an output.dir that already holds files"},
+};
+
+const size_t CFKeyCount = sizeof(CFKeys) / sizeof(CFKeys[0]);

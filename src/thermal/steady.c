@@ -1,0 +1,265 @@
+/* The steady coupled temperature-depletion solver: object life cycle, residual and Newton solve. */
+#include <math.h>
+#include <crustforge/units.h>
+#include "steady_impl.h"
+
+#define KCELL(info, kc, i, j) ((kc)[((j) - (info)->gys) * (info)->gxm + ((i) - (info)->gxs)])
+
+PetscErrorCode CFSteadyEquilibriumMelt(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x)
+{
+  PetscInt n = 0;
+
+  PetscFunctionBeginUser;
+  for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
+    for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
+      s->work_P[n] = CFPressure(&s->rc, (j + 0.5) * s->rc.dz);
+      s->work_T[n] = x[j][i].T;
+    }
+  PetscCall(CFMeltingModelMeltFractionArray(s->melting, n, s->work_P, s->work_T, s->work_F, s->work_dF));
+  PetscFunctionReturn(0);
+}
+
+/* Conductivity of every owned cell and of the neighbours across its faces. */
+void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x)
+{
+  const PetscReal dx = s->rc.dx, dz = s->rc.dz;
+  const PetscInt  i0 = PetscMax(info->xs - 1, 0), i1 = PetscMin(info->xs + info->xm + 1, info->mx);
+  const PetscInt  j0 = PetscMax(info->ys - 1, 0), j1 = PetscMin(info->ys + info->ym + 1, info->my);
+
+  for (PetscInt j = j0; j < j1; j++) {
+    const PetscBool owned_row = (PetscBool)(j >= info->ys && j < info->ys + info->ym);
+    for (PetscInt i = i0; i < i1; i++) {
+      const PetscBool owned_col = (PetscBool)(i >= info->xs && i < info->xs + info->xm);
+      if (!owned_row && !owned_col) continue; /* star stencil: corner ghosts are never used */
+      KCELL(info, s->kcell, i, j) = CFConductivity(&s->rc, (i + 0.5) * dx, (j + 0.5) * dz, x[j][i].T);
+    }
+  }
+}
+
+static PetscErrorCode FormFunctionLocal(DMDALocalInfo *info, CFCellState **x, CFCellState **f, void *ptr)
+{
+  CFSteady s = (CFSteady)ptr;
+  PetscInt n = 0;
+
+  PetscFunctionBeginUser;
+  CFSteadyConductivityPatch(s, info, (const CFCellState *const *)x);
+  PetscCall(CFSteadyEquilibriumMelt(s, info, (const CFCellState *const *)x));
+  for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
+    for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
+      PetscReal F_up, GV = CFDepletionMeltingRate(&s->rc, (const CFCellState *const *)x, i, j, &F_up);
+      f[j][i].T = CFEnergyResidualCell(&s->rc, info, (const CFCellState *const *)x, s->kcell, i, j, GV);
+      f[j][i].F = (x[j][i].F - PetscMax(s->work_F[n], F_up)) * s->rc.depletion_scale;
+    }
+  PetscCall(PetscLogFlops(200.0 * info->xm * info->ym));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
+{
+  CFSteady      s;
+  DMDALocalInfo info;
+  KSP           ksp;
+  PC            pc;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscNew(&s));
+  s->comm = comm;
+  s->cfg  = *cfg;
+  PetscCall(DMDACreate2d(comm, DM_BOUNDARY_NONE, DM_BOUNDARY_NONE, DMDA_STENCIL_STAR, cfg->nx, cfg->nz, PETSC_DECIDE, PETSC_DECIDE, 2, 2, NULL, NULL, &s->da));
+  PetscCall(DMSetFromOptions(s->da));
+  PetscCall(DMSetUp(s->da));
+  PetscCall(DMDASetFieldName(s->da, 0, "temperature"));
+  PetscCall(DMDASetFieldName(s->da, 1, "depletion"));
+  PetscCall(DMDASetUniformCoordinates(s->da, 0.5 * cfg->dx, cfg->width - 0.5 * cfg->dx, 0.5 * cfg->dz, cfg->depth - 0.5 * cfg->dz, 0, 0));
+  PetscCall(DMDACreateCompatibleDMDA(s->da, 1, &s->da1));
+  PetscCall(DMDASetUniformCoordinates(s->da1, 0.5 * cfg->dx, cfg->width - 0.5 * cfg->dx, 0.5 * cfg->dz, cfg->depth - 0.5 * cfg->dz, 0, 0));
+  PetscCall(DMCreateGlobalVector(s->da, &s->X));
+  PetscCall(PetscObjectSetName((PetscObject)s->X, "state"));
+
+  PetscCall(CFFlowCreate(cfg, &s->flow));
+  PetscCall(CFMeltingModelCreate(cfg, &s->melting));
+
+  /* residual context, SI */
+  s->rc.cfg                = &s->cfg;
+  s->rc.nx                 = cfg->nx;
+  s->rc.nz                 = cfg->nz;
+  s->rc.dx                 = cfg->dx;
+  s->rc.dz                 = cfg->dz;
+  s->rc.rho                = cfg->mantle_density;
+  s->rc.cp                 = cfg->heat_capacity;
+  s->rc.rho_crust          = cfg->crust_density;
+  s->rc.gravity            = cfg->gravity;
+  s->rc.adiabatic_gradient = cfg->adiabatic_gradient;
+  s->rc.entropy_of_fusion  = cfg->entropy_of_fusion;
+  s->rc.T_surface          = cfg->surface_temperature;
+  s->rc.T_bottom           = cfg->potential_temperature + cfg->adiabatic_gradient * cfg->depth;
+  /* residuals in K: heat per unit length over rho cp times an advective-plus-diffusive flux */
+  s->rc.energy_scale    = cfg->mantle_density * cfg->heat_capacity * (cfg->half_rate * cfg->dx + cfg->conductivity / (cfg->mantle_density * cfg->heat_capacity));
+  s->rc.depletion_scale = s->rc.T_bottom - s->rc.T_surface;
+
+  PetscCall(DMDAGetLocalInfo(s->da, &info));
+  s->rc.corners.I0 = info.gxs;
+  s->rc.corners.J0 = info.gys;
+  s->rc.corners.nI = info.gxm + 1;
+  s->rc.corners.nJ = info.gym + 1;
+  PetscCall(PetscMalloc1(s->rc.corners.nI * s->rc.corners.nJ, &s->rc.corners.psi));
+  PetscCall(CFFlowCornerStreamFunction(s->flow, cfg->dx, cfg->dz, info.gxs, info.gxm + 1, info.gys, info.gym + 1, s->rc.corners.psi));
+  s->nowned = info.xm * info.ym;
+  PetscCall(PetscMalloc4(s->nowned, &s->work_P, s->nowned, &s->work_T, s->nowned, &s->work_F, s->nowned, &s->work_dF));
+  PetscCall(PetscCalloc1(info.gxm * info.gym, &s->kcell));
+
+  /* Newton-Krylov: the Jacobian is applied matrix-free and preconditioned by the sparse LU of an
+     assembled first-order approximation (preconditioner.c); -steady_jacobian coloring uses the
+     exact coloured finite-difference Jacobian instead.  Measured in DEVELOPERS.md; -snes_*,
+     -ksp_*, -pc_* override. */
+  PetscCall(SNESCreate(comm, &s->snes));
+  PetscCall(SNESSetDM(s->snes, s->da));
+  PetscCall(DMDASNESSetFunctionLocal(s->da, INSERT_VALUES, (DMDASNESFunction)FormFunctionLocal, s));
+  PetscCall(SNESSetTolerances(s->snes, 1e-8, 1e-10, 0.0, 50, PETSC_DEFAULT));
+  {
+    const char *const kinds[] = {"split", "coloring", "CFSteadyJacobian", "", NULL};
+    PetscEnum         kind    = 0;
+    PetscOptionsBegin(comm, "steady_", "Steady coupled solver", "crustforge");
+    PetscCall(PetscOptionsEnum("-jacobian", "split: coloured finite-difference Jacobian as operator, GMRES preconditioned by the LU of a first-order five-point approximation; coloring: the coloured Jacobian factored directly", NULL, kinds, kind, &kind, NULL));
+    PetscOptionsEnd();
+    s->use_coloring = (PetscBool)(kind == 1);
+  }
+  PetscCall(SNESGetKSP(s->snes, &ksp));
+  PetscCall(KSPGetPC(ksp, &pc));
+  PetscCall(PCSetType(pc, PCLU));
+  PetscCall(PCFactorSetMatSolverType(pc, MATSOLVERMUMPS));
+  if (s->use_coloring) PetscCall(KSPSetType(ksp, KSPPREONLY));
+  else {
+    PetscCall(DMCreateMatrix(s->da, &s->A));
+    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
+    PetscCall(DMCreateMatrix(s->da, &s->P));
+    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_FALSE));
+    PetscCall(SNESSetJacobian(s->snes, s->A, s->P, CFSteadyFormJacobian, s));
+    PetscCall(KSPSetType(ksp, KSPGMRES));
+    PetscCall(KSPGMRESSetRestart(ksp, 100));
+    PetscCall(KSPSetTolerances(ksp, 1e-8, PETSC_DEFAULT, PETSC_DEFAULT, 200));
+  }
+  PetscCall(SNESSetFromOptions(s->snes));
+  *out = s;
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyDestroy(CFSteady *ps)
+{
+  CFSteady s = *ps;
+
+  PetscFunctionBeginUser;
+  if (!s) PetscFunctionReturn(0);
+  PetscCall(SNESDestroy(&s->snes));
+  PetscCall(MatDestroy(&s->P));
+  PetscCall(MatDestroy(&s->A));
+  PetscCall(VecDestroy(&s->X));
+  PetscCall(DMDestroy(&s->da1));
+  PetscCall(DMDestroy(&s->da));
+  PetscCall(CFFlowDestroy(&s->flow));
+  PetscCall(CFMeltingModelDestroy(&s->melting));
+  PetscCall(PetscFree(s->rc.corners.psi));
+  PetscCall(PetscFree4(s->work_P, s->work_T, s->work_F, s->work_dF));
+  PetscCall(PetscFree(s->kcell));
+  PetscCall(PetscFree(*ps));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadySetConductivityFunction(CFSteady s, CFPointFunction k, void *ctx)
+{
+  PetscFunctionBeginUser;
+  s->rc.kfun = k;
+  s->rc.kctx = ctx;
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadySetHeatSource(CFSteady s, CFPointFunction q, void *ctx)
+{
+  PetscFunctionBeginUser;
+  s->rc.source = q;
+  s->rc.sctx   = ctx;
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadySetInitialGuess(CFSteady s)
+{
+  const CFConfig *c = &s->cfg;
+  const PetscReal kappa = c->conductivity / (c->mantle_density * c->heat_capacity);
+  DMDALocalInfo   info;
+  CFCellState   **x;
+
+  PetscFunctionBeginUser;
+  PetscCall(DMDAGetLocalInfo(s->da, &info));
+  PetscCall(DMDAVecGetArray(s->da, s->X, &x));
+  for (PetscInt j = info.ys; j < info.ys + info.ym; j++)
+    for (PetscInt i = info.xs; i < info.xs + info.xm; i++) {
+      /* half-space cooling of the adiabat at plate age x / U0, offset so the axis is not at age 0 */
+      const PetscReal xc = (i + 0.5) * c->dx, z = (j + 0.5) * c->dz, age = (xc + 10.0 * c->dx) / c->half_rate;
+      const PetscReal Tad = c->potential_temperature + c->adiabatic_gradient * z;
+      x[j][i].T = c->surface_temperature + (Tad - c->surface_temperature) * erf(z / (2.0 * PetscSqrtReal(kappa * age)));
+      x[j][i].F = 0.0;
+    }
+  PetscCall(DMDAVecRestoreArray(s->da, s->X, &x));
+  PetscCall(CFDepletionSweep(s, s->X));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *r)
+{
+  Vec       Fv;
+  PetscReal t0;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscMemzero(r, sizeof(*r)));
+  t0 = MPI_Wtime();
+  PetscCall(VecDuplicate(s->X, &Fv));
+  PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
+  PetscCall(VecNorm(Fv, NORM_2, &r->initial_residual));
+  PetscCall(SNESSolve(s->snes, NULL, s->X));
+  PetscCall(SNESGetConvergedReason(s->snes, &r->reason));
+  PetscCall(SNESGetIterationNumber(s->snes, &r->nonlinear_iterations));
+  PetscCall(SNESGetLinearSolveIterations(s->snes, &r->linear_iterations));
+  PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
+  PetscCall(VecNorm(Fv, NORM_2, &r->final_residual));
+  PetscCall(VecDestroy(&Fv));
+  r->seconds = MPI_Wtime() - t0;
+  PetscCheck(r->reason > 0, s->comm, PETSC_ERR_NOT_CONVERGED, "steady solve did not converge: %s after %" PetscInt_FMT " Newton iterations, residual %g K (from %g K)", SNESConvergedReasons[r->reason], r->nonlinear_iterations, (double)r->final_residual, (double)r->initial_residual);
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyGetDM(CFSteady s, DM *da)
+{
+  PetscFunctionBeginUser;
+  *da = s->da;
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyGetScalarDM(CFSteady s, DM *da)
+{
+  PetscFunctionBeginUser;
+  *da = s->da1;
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyGetSolution(CFSteady s, Vec *X)
+{
+  PetscFunctionBeginUser;
+  *X = s->X;
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyGetFlow(CFSteady s, CFFlow *flow)
+{
+  PetscFunctionBeginUser;
+  *flow = s->flow;
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyGetMeltingModel(CFSteady s, CFMeltingModel *model)
+{
+  PetscFunctionBeginUser;
+  *model = s->melting;
+  PetscFunctionReturn(0);
+}
+
+const CFConfig *CFSteadyGetConfig(CFSteady s) { return &s->cfg; }

@@ -1,0 +1,75 @@
+/* Private to the steady solver: the object and the pieces the residual is built from. */
+#ifndef CRUSTFORGE_STEADY_IMPL_H
+#define CRUSTFORGE_STEADY_IMPL_H
+
+#include <crustforge/steady.h>
+
+/* Corner stream function over a rank's ghosted patch; face fluxes are its differences. */
+typedef struct {
+  PetscReal *psi;
+  PetscInt   I0, J0, nI, nJ;
+} CFCornerPsi;
+
+#define CF_PSI(c, a, b) ((c)->psi[((b) - (c)->J0) * (c)->nI + ((a) - (c)->I0)])
+/* Volume fluxes (m2/s) of cell (i, j): through the face at x = I dx (+x), and through the face
+   at z = J dz (upward, -z). */
+#define CF_QX(c, a, j) (CF_PSI(c, a, (j) + 1) - CF_PSI(c, a, j))
+#define CF_QZ(c, i, b) (CF_PSI(c, (i) + 1, b) - CF_PSI(c, i, b))
+
+/* What the cell residuals need, in SI. */
+typedef struct {
+  PetscInt        nx, nz;
+  PetscReal       dx, dz;
+  PetscReal       rho, cp, rho_crust;
+  PetscReal       adiabatic_gradient;       /* K/m */
+  PetscReal       entropy_of_fusion;        /* J kg-1 K-1 */
+  PetscReal       T_surface, T_bottom;      /* K */
+  PetscReal       gravity;
+  PetscReal       energy_scale;             /* W/m per K: residuals are reported in K */
+  PetscReal       depletion_scale;          /* K per unit melt fraction */
+  const CFConfig *cfg;
+  CFCornerPsi     corners;
+  CFPointFunction kfun, source;
+  void           *kctx, *sctx;
+} CFResidualCtx;
+
+struct _p_CFSteady {
+  MPI_Comm       comm;
+  CFConfig       cfg;
+  DM             da, da1; /* dof 2 (T, F) and dof 1 with the same layout */
+  SNES           snes;
+  Vec            X;
+  Mat            A, P; /* Jacobian (coloured differences) and its first-order approximation */
+  PetscBool      use_coloring;
+  CFFlow         flow;
+  CFMeltingModel melting;
+  CFResidualCtx  rc;
+  /* per-owned-cell work for the threaded melting model */
+  PetscInt       nowned;
+  PetscReal     *work_P, *work_T, *work_F, *work_dF;
+  PetscReal     *kcell; /* conductivity over the ghosted patch */
+};
+
+/* Effective conductivity at a cell centre (hydrothermal enhancement included). */
+PetscReal CFConductivity(const CFResidualCtx *rc, PetscReal x, PetscReal z, PetscReal T);
+/* Lithostatic pressure (Pa) at depth z. */
+static inline PetscReal CFPressure(const CFResidualCtx *rc, PetscReal z) { return rc->rho * rc->gravity * z; }
+
+/* Energy residual of owned cell (i, j), scaled to K.  kcell covers the ghosted patch
+   (indexing as CF_PSI without the corner row); Gamma_V is the melting rate times cell volume. */
+PetscReal CFEnergyResidualCell(const CFResidualCtx *rc, const DMDALocalInfo *info, const CFCellState *const *x, const PetscReal *kcell, PetscInt i, PetscInt j, PetscReal Gamma_V);
+/* Melting rate times cell volume (kg m-1 s-1, per unit ridge length) from the depletion of the
+   cell and its upstream neighbours, and the upstream depletion F_up. */
+PetscReal CFDepletionMeltingRate(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal *F_up);
+/* Depletion F_d of the cells in upstream order for the temperatures in X, exact (the same on any
+   rank count): F_d = max(F_eq, F_up).  Repeats local sweeps with ghost updates until nothing changes. */
+PetscErrorCode CFDepletionSweep(CFSteady s, Vec X);
+/* Conductivity of the owned cells and their face neighbours into s->kcell. */
+void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x);
+/* Jacobian by coloured differences into J, first-order approximation into P (preconditioner.c). */
+PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ctx);
+/* Equilibrium melt fraction of the owned cells for the temperatures of the local array x, into
+   s->work_F (and s->work_dF). */
+PetscErrorCode CFSteadyEquilibriumMelt(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x);
+
+#endif
