@@ -162,7 +162,7 @@ START_TEST(test_defaults)
   cf_assert_close(cfg.nusselt, 8.0, 1e-15);                        /* Phipps Morgan & Chen 1993, from memory */
   cf_assert_close(cfg.hydrothermal_temperature_cutoff, 600.0 + 273.15, 1e-15); /* same, from memory */
   cf_assert_close(cfg.hydrothermal_depth_cutoff, 6.0e3, 1e-15);    /* same, from memory */
-  cf_assert_close(cfg.hydrothermal_temperature_width, 50.0, 1e-15); /* common practice, no source */
+  cf_assert_close(cfg.hydrothermal_temperature_width, 100.0, 1e-15); /* common practice, no source */
   cf_assert_close(cfg.hydrothermal_depth_width, 1.0e3, 1e-15);     /* common practice, no source */
   ck_assert_str_eq(cfg.melting_model, "katz2003");                 /* Katz, Spiegelman & Langmuir 2003 */
   cf_assert_close(cfg.entropy_of_fusion, 300.0, 1e-15);            /* Katz, Spiegelman & Langmuir 2003, Table 2 */
@@ -333,6 +333,29 @@ START_TEST(test_entries_round_trip)
 }
 END_TEST
 
+/* The shipped default scenario validates and states the contract values (inputs/default.yaml;
+   the same values as the key table's defaults, test_defaults). */
+START_TEST(test_default_scenario_file)
+{
+  CFConfig    cfg;
+  char        path[PETSC_MAX_PATH_LEN], *slash;
+  char       *argv[] = {(char *)"test_config", NULL};
+
+  /* this file is SOURCE/tests/test_config.c (CMake compiles it by its absolute path) */
+  snprintf(path, sizeof(path), "%s", __FILE__);
+  slash = strrchr(path, '/');
+  ck_assert_ptr_nonnull(slash);
+  snprintf(slash, sizeof(path) - (size_t)(slash - path), "/../inputs/default.yaml");
+  CK_PETSC(CFConfigLoad(PETSC_COMM_WORLD, path, 1, argv, &cfg));
+  cf_assert_close(cfg.full_spreading_rate_mm_yr, 60.0, 1e-15);
+  cf_assert_close(cfg.potential_temperature, 1623.15, 1e-15);
+  cf_assert_near(cfg.water_ppm, 0.0, 0.0);
+  ck_assert_int_eq(cfg.nx, 400);
+  ck_assert_int_eq(cfg.nz, 200);
+  ck_assert_str_eq(cfg.melting_model, "katz2003");
+}
+END_TEST
+
 /* Ranges are inclusive where --help says "to" (project contract, src/config/keys.c). */
 START_TEST(test_range_bounds_accepted)
 {
@@ -413,6 +436,7 @@ static Suite *ConfigSuite(void)
   tcase_add_test(tc, test_unit_conversions);
   tcase_add_test(tc, test_grid_cells);
   tcase_add_test(tc, test_entries_round_trip);
+  tcase_add_test(tc, test_default_scenario_file);
   tcase_add_test(tc, test_range_bounds_accepted);
   tcase_add_test(tc, test_validation);
   tcase_add_test(tc, test_load_failures);

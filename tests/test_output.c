@@ -251,6 +251,41 @@ START_TEST(test_round_trip)
 }
 END_TEST
 
+/* Rank 0's part of test_layout_raw, as a message ("" when all is well) that every rank then
+   asserts on: a failing assertion on one rank alone would leave the others waiting. */
+static void CheckLayoutRaw(const CFConfig *cfg, char msg[], size_t len)
+{
+  char    path[PETSC_MAX_PATH_LEN];
+  hid_t   f, d, s;
+  hsize_t dims[2] = {0, 0};
+  double  T[12][24], x[24], z[12];
+  int     ok = 1;
+
+  TmpPath("run.h5", path);
+  if ((f = H5Fopen(path, H5F_ACC_RDONLY, H5P_DEFAULT)) < 0) { snprintf(msg, len, "cannot open %.400s", path); return; }
+  d = H5Dopen2(f, "temperature", H5P_DEFAULT);
+  s = H5Dget_space(d);
+  ok = H5Sget_simple_extent_ndims(s) == 2 && H5Sget_simple_extent_dims(s, dims, NULL) == 2 && dims[0] == 12 && dims[1] == 24;
+  ok = ok && H5Dread(d, H5T_NATIVE_DOUBLE, H5S_ALL, H5S_ALL, H5P_DEFAULT, T) >= 0;
+  H5Sclose(s);
+  H5Dclose(d);
+  d  = H5Dopen2(f, "x", H5P_DEFAULT);
+  ok = ok && H5Dread(d, H5T_NATIVE_DOUBLE, H5S_ALL, H5S_ALL, H5P_DEFAULT, x) >= 0;
+  H5Dclose(d);
+  d  = H5Dopen2(f, "z", H5P_DEFAULT);
+  ok = ok && H5Dread(d, H5T_NATIVE_DOUBLE, H5S_ALL, H5S_ALL, H5P_DEFAULT, z) >= 0;
+  H5Dclose(d);
+  H5Fclose(f);
+  if (!ok) { snprintf(msg, len, "temperature is not a readable [12][24] dataset (dims %d x %d), or x, z are missing", (int)dims[0], (int)dims[1]); return; }
+  /* cell centres (i + 1/2) 2 km */
+  if (PetscAbsReal(x[0] - 1.0) > 1e-15 || PetscAbsReal(x[23] - 47.0) > 1e-13 || PetscAbsReal(z[11] - 23.0) > 1e-13) { snprintf(msg, len, "coordinates x0 %g x23 %g z11 %g km, expected 1, 47, 23", x[0], x[23], z[11]); return; }
+  for (int j = 0; j < 12; j++)
+    for (int i = 0; i < 24; i++) {
+      PetscReal ex = CFKelvinToCelsius(Analytic(cfg, "temperature", i, j));
+      if (PetscAbsReal(T[j][i] - ex) > 1e-14 * PetscAbsReal(ex)) { snprintf(msg, len, "temperature[%d][%d] = %.15g degC, expected %.15g", j, i, T[j][i], (double)ex); return; }
+    }
+}
+
 /* The stored layout read with plain serial HDF5 on rank 0, not through PETSc: dataset shape
    [nz][nx] in natural order (x fastest) and values in the output unit, coordinates in km at the
    cell centres (expected values derived from the analytic fields and x_i = (i + 1/2) dx). */
@@ -259,44 +294,18 @@ START_TEST(test_layout_raw)
   CFConfig    cfg;
   DM          da;
   PetscMPIInt rank;
-  char        path[PETSC_MAX_PATH_LEN];
+  char        msg[512] = "";
 
   MakeTmp();
   CK_PETSC(LoadScenario(&cfg));
   CK_PETSC(CreateGrid(&cfg, &da));
   CK_PETSC(WriteRun(&cfg, da, "run.h5", PETSC_TRUE));
   MPI_Comm_rank(PETSC_COMM_WORLD, &rank);
-  if (!rank) {
-    hid_t   f, d, s;
-    hsize_t dims[2];
-    double  T[12][24], x[24], z[12];
-
-    TmpPath("run.h5", path);
-    ck_assert((f = H5Fopen(path, H5F_ACC_RDONLY, H5P_DEFAULT)) >= 0);
-    ck_assert((d = H5Dopen2(f, "temperature", H5P_DEFAULT)) >= 0);
-    s = H5Dget_space(d);
-    ck_assert_int_eq(H5Sget_simple_extent_ndims(s), 2);
-    H5Sget_simple_extent_dims(s, dims, NULL);
-    ck_assert_int_eq((int)dims[0], 12);
-    ck_assert_int_eq((int)dims[1], 24);
-    ck_assert(H5Dread(d, H5T_NATIVE_DOUBLE, H5S_ALL, H5S_ALL, H5P_DEFAULT, T) >= 0);
-    H5Sclose(s);
-    H5Dclose(d);
-    d = H5Dopen2(f, "x", H5P_DEFAULT);
-    ck_assert(H5Dread(d, H5T_NATIVE_DOUBLE, H5S_ALL, H5S_ALL, H5P_DEFAULT, x) >= 0);
-    H5Dclose(d);
-    d = H5Dopen2(f, "z", H5P_DEFAULT);
-    ck_assert(H5Dread(d, H5T_NATIVE_DOUBLE, H5S_ALL, H5S_ALL, H5P_DEFAULT, z) >= 0);
-    H5Dclose(d);
-    H5Fclose(f);
-    cf_assert_close(x[0], 1.0, 1e-15);  /* (0 + 1/2) 2 km */
-    cf_assert_close(x[23], 47.0, 1e-15);
-    cf_assert_close(z[11], 23.0, 1e-15);
-    for (int j = 0; j < 12; j++)
-      for (int i = 0; i < 24; i++) cf_assert_close(T[j][i], CFKelvinToCelsius(Analytic(&cfg, "temperature", i, j)), 1e-14);
-  }
+  if (!rank) CheckLayoutRaw(&cfg, msg, sizeof(msg));
+  MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, PETSC_COMM_WORLD);
   CK_PETSC(DMDestroy(&da));
   RemoveTmp();
+  ck_assert_msg(!msg[0], "%s", msg);
 }
 END_TEST
 
@@ -376,20 +385,22 @@ START_TEST(test_failed_close)
 }
 END_TEST
 
-/* Rank 0 writes a file of len bytes: text, or the first len bytes of src. */
-static void WriteBytes(const char *name, const char *text, const char *src, long len)
+/* Rank 0 writes a file: text, or the first len bytes of src.  Returns 0 on success. */
+static int WriteBytes(const char *name, const char *text, const char *src, long len)
 {
   char  path[PETSC_MAX_PATH_LEN], from[PETSC_MAX_PATH_LEN];
   FILE *out, *in = NULL;
+  int   rc = 0;
   TmpPath(name, path);
-  ck_assert_ptr_nonnull(out = fopen(path, "wb"));
+  if (!(out = fopen(path, "wb"))) return -1;
   if (src) {
     TmpPath(src, from);
-    ck_assert_ptr_nonnull(in = fopen(from, "rb"));
-    for (long k = 0; k < len; k++) fputc(fgetc(in), out);
-    fclose(in);
+    if ((in = fopen(from, "rb"))) {
+      for (long k = 0; k < len; k++) fputc(fgetc(in), out);
+      fclose(in);
+    } else rc = -1;
   } else fputs(text, out);
-  fclose(out);
+  return fclose(out) || rc ? -1 : 0;
 }
 
 static long FileSize(const char *name)
@@ -400,25 +411,23 @@ static long FileSize(const char *name)
   return stat(path, &st) ? -1 : (long)st.st_size;
 }
 
-/* An HDF5 file made by someone else (no marker), and one with provenance but without the marker
-   that a successful close writes last (what a killed run leaves). */
-static void WriteForeignHDF5(const char *name, PetscBool provenance)
+/* An HDF5 file made by someone else (no marker), or one with provenance but without the marker
+   that a successful close writes last (what a killed run leaves).  Returns 0 on success. */
+static int WriteForeignHDF5(const char *name, PetscBool provenance)
 {
   char  path[PETSC_MAX_PATH_LEN];
   hid_t f, s, a, t;
+  int   rc = 0;
   TmpPath(name, path);
-  ck_assert((f = H5Fcreate(path, H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT)) >= 0);
+  if ((f = H5Fcreate(path, H5F_ACC_TRUNC, H5P_DEFAULT, H5P_DEFAULT)) < 0) return -1;
   if (provenance) {
-    s = H5Screate(H5S_SCALAR);
-    t = H5Tcopy(H5T_C_S1);
-    H5Tset_size(t, 6);
-    a = H5Acreate2(f, "crustforge_version", t, s, H5P_DEFAULT, H5P_DEFAULT);
-    H5Awrite(a, t, "0.1.0");
-    H5Aclose(a);
+    s  = H5Screate(H5S_SCALAR);
+    t  = H5Tcopy(H5T_C_S1);
+    rc = H5Tset_size(t, 6) < 0 || (a = H5Acreate2(f, "crustforge_version", t, s, H5P_DEFAULT, H5P_DEFAULT)) < 0 || H5Awrite(a, t, "0.1.0") < 0 || H5Aclose(a) < 0 ? -1 : 0;
     H5Tclose(t);
     H5Sclose(s);
   }
-  H5Fclose(f);
+  return H5Fclose(f) < 0 || rc ? -1 : 0;
 }
 
 /* Expect CFRunReaderOpen to fail with code, naming the file in its message. */
@@ -446,6 +455,7 @@ START_TEST(test_refused_files)
   CFConfig    cfg;
   DM          da;
   PetscMPIInt rank;
+  int         made = 0;
 
   MakeTmp();
   CK_PETSC(LoadScenario(&cfg));
@@ -453,12 +463,11 @@ START_TEST(test_refused_files)
   CK_PETSC(WriteRun(&cfg, da, "run.h5", PETSC_TRUE));
   MPI_Comm_rank(PETSC_COMM_WORLD, &rank);
   if (!rank) {
-    WriteBytes("text.h5", "temperature,depth\n1350,10\n", NULL, 0);
-    WriteBytes("truncated.h5", NULL, "run.h5", FileSize("run.h5") / 2);
-    WriteForeignHDF5("foreign.h5", PETSC_FALSE);
-    WriteForeignHDF5("incomplete.h5", PETSC_TRUE);
+    made = !WriteBytes("text.h5", "temperature,depth\n1350,10\n", NULL, 0) && !WriteBytes("truncated.h5", NULL, "run.h5", FileSize("run.h5") / 2);
+    made = made && !WriteForeignHDF5("foreign.h5", PETSC_FALSE) && !WriteForeignHDF5("incomplete.h5", PETSC_TRUE);
   }
-  MPI_Barrier(PETSC_COMM_WORLD);
+  MPI_Bcast(&made, 1, MPI_INT, 0, PETSC_COMM_WORLD);
+  ck_assert_msg(made, "cannot write the test files");
   ExpectRefused("missing.h5", PETSC_ERR_FILE_OPEN);
   ExpectRefused("text.h5", PETSC_ERR_FILE_UNEXPECTED);
   ExpectRefused("truncated.h5", PETSC_ERR_FILE_UNEXPECTED);

@@ -8,6 +8,13 @@
 
 #define CF_NAME_LEN            64
 #define CF_MELTING_MAX_PARAMS  32
+#define CF_REAL_LIST_MAX       16
+
+/* A key holding a comma-separated list of reals (YAML [a, b, c]), SI. */
+typedef struct {
+  PetscInt  n;
+  PetscReal v[CF_REAL_LIST_MAX];
+} CFRealList;
 
 typedef struct {
   char scenario[PETSC_MAX_PATH_LEN]; /* scenario file as given */
@@ -51,6 +58,19 @@ typedef struct {
   PetscReal entropy_of_fusion;                    /* J kg-1 K-1; latent heat = T dS */
   PetscInt  melting_nparams;                      /* of the chosen model */
   PetscReal melting_params[CF_MELTING_MAX_PARAMS];/* in the model's own published units */
+
+  /* extraction of melt to the crust (post-processor) */
+  PetscReal extraction_focusing_width;  /* m; 0: all melt is delivered */
+  PetscReal extraction_min_depletion;   /* melt made where F_d is below this is not delivered */
+  PetscReal extraction_lid_temperature; /* K; 0 C (273.15 K) turns the lid off */
+
+  /* observables (post-processor) */
+  PetscReal melt_lens_isotherm;   /* K */
+  PetscReal lithosphere_isotherm; /* K */
+  PetscReal ridge_depth;          /* m, seafloor depth at the axis */
+
+  /* P-T paths (post-processor) */
+  CFRealList pt_path_start_x; /* m, distances from the axis where parcels enter at the bottom */
 
   /* output */
   char      output_dir[PETSC_MAX_PATH_LEN];

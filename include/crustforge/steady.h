@@ -34,6 +34,10 @@ PETSC_EXTERN PetscErrorCode CFSteadySetConductivityFunction(CFSteady s, CFPointF
 PETSC_EXTERN PetscErrorCode CFSteadySetHeatSource(CFSteady s, CFPointFunction q, void *ctx);
 /* Fill the solution with a cooling-plate temperature and the depletion it implies. */
 PETSC_EXTERN PetscErrorCode CFSteadySetInitialGuess(CFSteady s);
+/* The same, improved by grid sequencing: solve on grids 2, 4, ... times coarser (down to the
+   spacing -steady_coarsest_spacing, km, default 8) and interpolate.  Reports the levels used and
+   the Newton iterations spent on them. */
+PETSC_EXTERN PetscErrorCode CFSteadySequenceInitialGuess(CFSteady s, PetscInt *levels, PetscInt *coarse_iterations);
 /* Solve from the current solution.  Non-convergence is PETSC_ERR_NOT_CONVERGED naming PETSc's
    reason; the report is filled either way. */
 PETSC_EXTERN PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *report);
@@ -48,6 +52,8 @@ PETSC_EXTERN const CFConfig *CFSteadyGetConfig(CFSteady s);
 /* Derived cell fields into dof-1 vectors of the scalar DM (any may be NULL): temperature (K),
    depletion, equilibrium melt fraction, melting rate (kg m-3 s-1), effective conductivity. */
 PETSC_EXTERN PetscErrorCode CFSteadyGetFields(CFSteady s, Vec T, Vec F, Vec Feq, Vec Gamma, Vec k);
+/* Lithostatic pressure rho_m g z (Pa) at the cell centres. */
+PETSC_EXTERN PetscErrorCode CFSteadyGetPressure(CFSteady s, Vec P);
 /* Crustal thickness (m) from the integrated melting rate and from the depletion flux through the
    far side, both per half domain: H = integral(Gamma dA) / (rho_c U0). */
 PETSC_EXTERN PetscErrorCode CFSteadyCrustalThickness(CFSteady s, PetscReal *H_melting, PetscReal *H_side);

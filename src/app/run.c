@@ -1,7 +1,54 @@
 /* The steady run: from a validated scenario to the files in output.dir. */
 #include <crustforge/app.h>
+#include <crustforge/output.h>
+#include <crustforge/rundata.h>
 #include <crustforge/steady.h>
 #include <crustforge/units.h>
+
+/* Every field of the run, as dof-1 vectors of the solver's scalar DMDA. */
+static PetscErrorCode ComputeFields(CFSteady s, Vec v[CF_NFIELDS])
+{
+  DM     da;
+  CFFlow flow;
+
+  PetscFunctionBeginUser;
+  PetscCall(CFSteadyGetScalarDM(s, &da));
+  PetscCall(CFSteadyGetFlow(s, &flow));
+  for (PetscInt f = 0; f < CF_NFIELDS; f++) {
+    PetscCall(DMCreateGlobalVector(da, &v[f]));
+    PetscCall(PetscObjectSetName((PetscObject)v[f], CFRunFields[f].name));
+  }
+  PetscCall(CFSteadyGetFields(s, v[CF_FIELD_TEMPERATURE], v[CF_FIELD_DEPLETION], v[CF_FIELD_MELT_FRACTION_EQ], v[CF_FIELD_MELTING_RATE], v[CF_FIELD_CONDUCTIVITY]));
+  PetscCall(CFSteadyGetPressure(s, v[CF_FIELD_PRESSURE]));
+  PetscCall(CFFlowCellFields(flow, da, CFSteadyGetConfig(s)->dx, CFSteadyGetConfig(s)->dz, v[CF_FIELD_VELOCITY_X], v[CF_FIELD_VELOCITY_UP], v[CF_FIELD_STREAM_FUNCTION]));
+  PetscFunctionReturn(0);
+}
+
+static PetscErrorCode WriteRunFile(MPI_Comm comm, const CFConfig *cfg, DM da, Vec v[CF_NFIELDS], const CFSolveReport *rep, PetscReal H, PetscReal Hs)
+{
+  char           path[PETSC_MAX_PATH_LEN];
+  CFRunFile      file;
+  PetscErrorCode ierr;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscSNPrintf(path, sizeof(path), "%s/run.h5", cfg->output_dir));
+  PetscCall(CFRunFileCreate(comm, cfg, da, path, &file));
+  /* a failure part way removes the temporary file, so nothing complete-looking is left */
+  ierr = 0;
+  for (PetscInt f = 0; f < CF_NFIELDS && !ierr; f++) ierr = CFRunFileWriteField(file, &CFRunFields[f], v[f]);
+  if (!ierr) ierr = CFRunFileSetAttributeInt(file, "nonlinear_iterations", rep->nonlinear_iterations);
+  if (!ierr) ierr = CFRunFileSetAttributeInt(file, "linear_iterations", rep->linear_iterations);
+  if (!ierr) ierr = CFRunFileSetAttributeReal(file, "residual_norm", rep->final_residual);
+  if (!ierr) ierr = CFRunFileSetAttributeReal(file, "solve_seconds", rep->seconds);
+  if (!ierr) ierr = CFRunFileSetAttributeReal(file, "crustal_thickness_km", CFMToKm(H));
+  if (!ierr) ierr = CFRunFileSetAttributeReal(file, "crustal_thickness_side_flux_km", CFMToKm(Hs));
+  if (ierr) {
+    (void)CFRunFileClose(&file, PETSC_FALSE);
+    PetscCall(ierr);
+  }
+  PetscCall(CFRunFileClose(&file, PETSC_TRUE));
+  PetscFunctionReturn(0);
+}
 
 PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
 {
@@ -9,16 +56,35 @@ PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
   CFSteady      s;
   CFSolveReport rep;
   PetscReal     H, Hs;
+  Vec           v[CF_NFIELDS];
+  DM            da;
+  PetscLogStage stage_solve, stage_output;
+  PetscInt      levels, coarse_its;
 
   PetscFunctionBeginUser;
+  PetscCall(PetscLogStageRegister("Steady solve", &stage_solve));
+  PetscCall(PetscLogStageRegister("Output", &stage_output));
   PetscCall(CFConfigView(cfg, viewer));
   PetscCall(CFOutputDirPrepare(comm, cfg));
+
+  PetscCall(PetscLogStagePush(stage_solve));
   PetscCall(CFSteadyCreate(comm, cfg, &s));
-  PetscCall(CFSteadySetInitialGuess(s));
+  PetscCall(CFSteadySequenceInitialGuess(s, &levels, &coarse_its));
+  if (levels) PetscCall(PetscPrintf(comm, "initial guess: %" PetscInt_FMT " coarser grids, %" PetscInt_FMT " Newton iterations on them\n", levels, coarse_its));
   PetscCall(CFSteadySolve(s, &rep));
+  PetscCall(PetscLogStagePop());
   PetscCall(PetscPrintf(comm, "steady solve: %" PetscInt_FMT " Newton iterations, %" PetscInt_FMT " linear iterations, residual %.3e K -> %.3e K (%s), %.2f s\n", rep.nonlinear_iterations, rep.linear_iterations, (double)rep.initial_residual, (double)rep.final_residual, SNESConvergedReasons[rep.reason], (double)rep.seconds));
   PetscCall(CFSteadyCrustalThickness(s, &H, &Hs));
+
+  PetscCall(PetscLogStagePush(stage_output));
+  PetscCall(ComputeFields(s, v));
+  PetscCall(CFSteadyGetScalarDM(s, &da));
+  PetscCall(WriteRunFile(comm, cfg, da, v, &rep, H, Hs));
+  PetscCall(PetscLogStagePop());
   PetscCall(PetscPrintf(comm, "crustal thickness: %.4f km from melting rate, %.4f km from far-side depletion flux\n", (double)CFMToKm(H), (double)CFMToKm(Hs)));
+  PetscCall(PetscPrintf(comm, "wrote %s/run.h5 and run.xdmf\n", cfg->output_dir));
+
+  for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(VecDestroy(&v[f]));
   PetscCall(CFSteadyDestroy(&s));
   PetscFunctionReturn(0);
 }

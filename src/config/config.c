@@ -59,6 +59,29 @@ PetscBool CFParseBool(const char *text, PetscBool *v)
 
 static void *Field(CFConfig *cfg, size_t offset) { return (char *)cfg + offset; }
 
+/* Split text at commas into reals (the user's unit).  Returns 0; 1 when an item is not a finite
+   number (its text in bad); 2 when there are more than CF_REAL_LIST_MAX items; 3 when empty. */
+static int ParseRealList(const char *text, CFRealList *list, char bad[], size_t len)
+{
+  list->n = 0;
+  for (const char *p = text; p;) {
+    const char *comma = strchr(p, ',');
+    size_t      n     = comma ? (size_t)(comma - p) : strlen(p);
+    char        item[PETSC_MAX_PATH_LEN];
+
+    snprintf(item, sizeof(item), "%.*s", (int)PetscMin(n, sizeof(item) - 1), p);
+    if (!comma && list->n == 0 && strspn(item, " \t") == strlen(item)) return 3;
+    if (list->n == CF_REAL_LIST_MAX) return 2;
+    if (!CFParseReal(item, &list->v[list->n])) {
+      snprintf(bad, len, "%s", item);
+      return 1;
+    }
+    list->n++;
+    p = comma ? comma + 1 : NULL;
+  }
+  return 0;
+}
+
 /* A number as text for a user-facing message.  PETSc's printf writes a bare %g of a whole number
    with a trailing '.' ("900."), so messages format numbers with the C library first ("900"). */
 static const char *Num(char *buf, size_t len, double v)
@@ -92,6 +115,12 @@ PetscErrorCode CFConfigSetDefaults(CFConfig *cfg)
     case CF_KEY_REAL:
       if (CFParseReal(k->def, &v)) *(PetscReal *)Field(cfg, k->offset) = CFKeyToSI(k, v);
       break;
+    case CF_KEY_REAL_LIST: {
+      CFRealList *list = (CFRealList *)Field(cfg, k->offset);
+      char        bad[8];
+      if (ParseRealList(k->def, list, bad, sizeof(bad))) list->n = 0;
+      for (PetscInt m = 0; m < list->n; m++) list->v[m] = CFKeyToSI(k, list->v[m]);
+    } break;
     case CF_KEY_STRING: PetscCall(PetscStrncpy((char *)Field(cfg, k->offset), k->def, k->size)); break;
     case CF_KEY_BOOL: {
       PetscBool b = PETSC_FALSE;
@@ -129,6 +158,20 @@ static PetscErrorCode ReadKey(PetscOptionItems *PetscOptionsObject, MPI_Comm com
     PetscCheck(InRange(v, k->lo, k->hi, k->lo_open, k->hi_open), comm, PETSC_ERR_USER_INPUT, "%s.%s: %s %s is outside the allowed range (%s)", k->section, k->name, Num(vs, sizeof(vs), v), k->unit, range);
     *(PetscReal *)Field(cfg, k->offset) = CFKeyToSI(k, v);
   } break;
+  case CF_KEY_REAL_LIST: {
+    CFRealList list;
+    char       range[128], vs[32], bad[64];
+    int        rc = ParseRealList(value, &list, bad, sizeof(bad));
+    RangeText(k, range, sizeof(range));
+    PetscCheck(rc != 3, comm, PETSC_ERR_USER_INPUT, "%s.%s: empty list (expected 1 to %d numbers, each %s)", k->section, k->name, CF_REAL_LIST_MAX, range);
+    PetscCheck(rc != 2, comm, PETSC_ERR_USER_INPUT, "%s.%s: more than %d numbers (at most %d allowed)", k->section, k->name, CF_REAL_LIST_MAX, CF_REAL_LIST_MAX);
+    PetscCheck(rc != 1, comm, PETSC_ERR_USER_INPUT, "%s.%s: '%s' is not a finite number (expected a list of numbers, each %s)", k->section, k->name, bad, range);
+    for (PetscInt m = 0; m < list.n; m++) {
+      PetscCheck(InRange(list.v[m], k->lo, k->hi, k->lo_open, k->hi_open), comm, PETSC_ERR_USER_INPUT, "%s.%s: %s %s is outside the allowed range (%s)", k->section, k->name, Num(vs, sizeof(vs), list.v[m]), k->unit, range);
+      list.v[m] = CFKeyToSI(k, list.v[m]);
+    }
+    *(CFRealList *)Field(cfg, k->offset) = list;
+  } break;
   case CF_KEY_STRING: {
     size_t n;
     PetscCall(PetscStrlen(value, &n));
@@ -146,32 +189,41 @@ static PetscErrorCode ReadKey(PetscOptionItems *PetscOptionsObject, MPI_Comm com
   PetscFunctionReturn(0);
 }
 
+static PetscErrorCode ReadMeltingParam(PetscOptionItems *PetscOptionsObject, MPI_Comm comm, const CFMeltingType *mt, PetscInt p, CFConfig *cfg)
+{
+  const CFMeltingParamInfo *pi = &mt->params[p];
+  char                      opt[128], help[512], def[64], value[256], range[128], vs[32];
+  PetscBool                 set;
+  PetscReal                 v;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscSNPrintf(opt, sizeof(opt), "-%s", pi->key));
+  PetscCall(PetscSNPrintf(help, sizeof(help), "%s [%s]", pi->help, pi->unit));
+  (void)Num(def, sizeof(def), pi->value);
+  snprintf(range, sizeof(range), "%g to %g %s", (double)pi->lo, (double)pi->hi, pi->unit);
+  cfg->melting_params[p] = pi->value;
+  PetscCall(PetscOptionsString(opt, help, NULL, def, value, sizeof(value), &set));
+  if (!set) PetscFunctionReturn(0);
+  PetscCheck(CFParseReal(value, &v), comm, PETSC_ERR_USER_INPUT, "%s.%s: '%s' is not a finite number (expected %s)", mt->name, pi->key, value, range);
+  PetscCheck(v >= pi->lo && v <= pi->hi, comm, PETSC_ERR_USER_INPUT, "%s.%s: %s %s is outside the allowed range (%s)", mt->name, pi->key, Num(vs, sizeof(vs), v), pi->unit, range);
+  cfg->melting_params[p] = v;
+  PetscFunctionReturn(0);
+}
+
+/* Errors inside PetscOptionsBegin/End are raised only after PetscOptionsEnd, which frees what
+   PetscOptionsBegin allocated (returning from inside the block leaks it). */
 static PetscErrorCode ReadMeltingParams(MPI_Comm comm, const CFMeltingType *mt, CFConfig *cfg)
 {
-  char prefix[CF_NAME_LEN + 2];
+  char           prefix[CF_NAME_LEN + 2];
+  PetscErrorCode ierr = 0;
 
   PetscFunctionBeginUser;
   PetscCall(PetscSNPrintf(prefix, sizeof(prefix), "%s_", mt->name));
   cfg->melting_nparams = mt->nparams;
   PetscOptionsBegin(comm, prefix, mt->description, "melting");
-  for (PetscInt p = 0; p < mt->nparams; p++) {
-    const CFMeltingParamInfo *pi = &mt->params[p];
-    char                      opt[128], help[512], def[64], value[256], range[128], vs[32];
-    PetscBool                 set;
-    PetscReal                 v;
-
-    PetscCall(PetscSNPrintf(opt, sizeof(opt), "-%s", pi->key));
-    PetscCall(PetscSNPrintf(help, sizeof(help), "%s [%s]", pi->help, pi->unit));
-    (void)Num(def, sizeof(def), pi->value);
-    snprintf(range, sizeof(range), "%g to %g %s", (double)pi->lo, (double)pi->hi, pi->unit);
-    cfg->melting_params[p] = pi->value;
-    PetscCall(PetscOptionsString(opt, help, NULL, def, value, sizeof(value), &set));
-    if (!set) continue;
-    PetscCheck(CFParseReal(value, &v), comm, PETSC_ERR_USER_INPUT, "%s.%s: '%s' is not a finite number (expected %s)", mt->name, pi->key, value, range);
-    PetscCheck(v >= pi->lo && v <= pi->hi, comm, PETSC_ERR_USER_INPUT, "%s.%s: %s %s is outside the allowed range (%s)", mt->name, pi->key, Num(vs, sizeof(vs), v), pi->unit, range);
-    cfg->melting_params[p] = v;
-  }
+  for (PetscInt p = 0; p < mt->nparams && !ierr; p++) ierr = ReadMeltingParam(PetscOptionsObject, comm, mt, p, cfg);
   PetscOptionsEnd();
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }
 
@@ -242,14 +294,17 @@ PetscErrorCode CFConfigSetFromOptions(MPI_Comm comm, CFConfig *cfg)
   PetscFunctionBeginUser;
   PetscCall(CFConfigSetDefaults(cfg));
   for (size_t i = 0; i < CFKeyCount;) {
-    const char *section = CFKeys[i].section;
-    char        prefix[64], title[128];
+    const char    *section = CFKeys[i].section;
+    char           prefix[64], title[128];
+    PetscErrorCode ierr = 0;
 
     PetscCall(PetscSNPrintf(prefix, sizeof(prefix), "%s_", section));
     PetscCall(PetscSNPrintf(title, sizeof(title), "Scenario keys, section %s", section));
     PetscOptionsBegin(comm, prefix, title, "crustforge");
-    for (; i < CFKeyCount && !strcmp(CFKeys[i].section, section); i++) PetscCall(ReadKey(PetscOptionsObject, comm, &CFKeys[i], cfg));
+    for (; i < CFKeyCount && !strcmp(CFKeys[i].section, section); i++)
+      if (!ierr) ierr = ReadKey(PetscOptionsObject, comm, &CFKeys[i], cfg);
     PetscOptionsEnd();
+    PetscCall(ierr); /* after PetscOptionsEnd: see ReadMeltingParams */
   }
   mt = CFMeltingTypeFind(cfg->melting_model);
   if (!mt) {
@@ -321,6 +376,17 @@ static void FormatValue(const CFConfig *cfg, const CFKey *k, const char *realfmt
   case CF_KEY_REAL: snprintf(buf, len, realfmt, (double)CFKeyFromSI(k, *(const PetscReal *)f)); break;
   case CF_KEY_STRING: snprintf(buf, len, "%s", (const char *)f); break;
   case CF_KEY_BOOL: snprintf(buf, len, "%s", *(const PetscBool *)f ? "true" : "false"); break;
+  case CF_KEY_REAL_LIST: { /* "a,b,c", as PETSc reads a YAML list back */
+    const CFRealList *list = (const CFRealList *)f;
+    size_t            used = 0;
+    buf[0]                 = 0;
+    for (PetscInt m = 0; m < list->n && used + 1 < len; m++) {
+      int w;
+      if (m) buf[used++] = ',';
+      w = snprintf(buf + used, len - used, realfmt, (double)CFKeyFromSI(k, list->v[m]));
+      used += w > 0 ? (size_t)w : 0;
+    }
+  } break;
   }
 }
 
@@ -398,6 +464,11 @@ PetscErrorCode CFConfigPrintKeys(FILE *fp)
       fprintf(fp, "\n  %s:\n", section);
     }
     if (k->type == CF_KEY_REAL) RangeText(k, range, sizeof(range));
+    else if (k->type == CF_KEY_REAL_LIST) {
+      char each[96];
+      RangeText(k, each, sizeof(each));
+      snprintf(range, sizeof(range), "list of up to %d, each %s", CF_REAL_LIST_MAX, each);
+    }
     else if (k->type == CF_KEY_BOOL) snprintf(range, sizeof(range), "true or false");
     else snprintf(range, sizeof(range), "text");
     fprintf(fp, "    %-22s default %-16s %-8s range %s\n      %s\n", k->name, k->def, k->unit, range, k->help);

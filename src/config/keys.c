@@ -63,6 +63,25 @@ const CFKey CFKeys[] = {
    "directory for the run's files; created, never overwritten unless output.overwrite"},
   {"output", "overwrite", "", CF_KEY_BOOL, CF_CONV_NONE, "false", 0, 0, PETSC_FALSE, PETSC_FALSE, F(output_overwrite), NOSET,
    "allow writing into an output.dir that already holds files"},
+
+  /* Post-processor settings (postprocess/): re-analysing a saved run with other values of these
+     needs no new solve (crustforge-post). */
+  {"extraction", "focusing_width", "km", CF_KEY_REAL, CF_CONV_KM, "0", 0, 10000, PETSC_FALSE, PETSC_FALSE, F(extraction_focusing_width), NOSET,
+   "melt made farther than this from the axis is not delivered to the crust; 0 delivers all melt (default: all melt reaches the axis, common practice, no source)"},
+  {"extraction", "min_depletion", "1", CF_KEY_REAL, CF_CONV_NONE, "0", 0, 1, PETSC_FALSE, PETSC_FALSE, F(extraction_min_depletion), NOSET,
+   "melt made where the depletion of the residue is below this stays in the residue; 0 delivers all (common practice, no source)"},
+  {"extraction", "lid_temperature", "C", CF_KEY_REAL, CF_CONV_CELSIUS, "0", 0, 1800, PETSC_FALSE, PETSC_FALSE, F(extraction_lid_temperature), NOSET,
+   "melt made where the mantle is colder than this freezes in the lid; 0 turns the lid off (default; common practice, no source)"},
+
+  {"observables", "melt_lens_isotherm", "C", CF_KEY_REAL, CF_CONV_CELSIUS, "1200", 100, 1800, PETSC_FALSE, PETSC_FALSE, F(melt_lens_isotherm), NOSET,
+   "isotherm whose shallowest depth at the axis is reported as the melt-lens depth; 1150-1200 C, meaningful with hydrothermal cooling on (common practice, no source)"},
+  {"observables", "lithosphere_isotherm", "C", CF_KEY_REAL, CF_CONV_CELSIUS, "1100", 100, 1800, PETSC_FALSE, PETSC_FALSE, F(lithosphere_isotherm), NOSET,
+   "isotherm whose depth is reported as the lithosphere thickness (common practice, no source)"},
+  {"observables", "ridge_depth", "km", CF_KEY_REAL, CF_CONV_KM, "2.5", 0, 10, PETSC_FALSE, PETSC_FALSE, F(ridge_depth), NOSET,
+   "seafloor depth at the axis, the reference of the isostatic depth profile (2500 m at zero age: Parsons & Sclater 1977, JGR 82)"},
+
+  {"pt_paths", "start_x", "km", CF_KEY_REAL_LIST, CF_CONV_KM, "2,10,20,40,60", 0, 10000, PETSC_FALSE, PETSC_FALSE, F(pt_path_start_x), NOSET,
+   "distances from the axis where the parcels of the P-T paths enter at the bottom, a list of at most 16; values at or beyond grid.width are skipped (common practice, no source)"},
 };
 
 const size_t CFKeyCount = sizeof(CFKeys) / sizeof(CFKeys[0]);

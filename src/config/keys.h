@@ -4,7 +4,8 @@
 
 #include <crustforge/config.h>
 
-typedef enum { CF_KEY_REAL, CF_KEY_STRING, CF_KEY_BOOL } CFKeyType;
+/* CF_KEY_REAL_LIST: a CFRealList field; lo, hi, conversion and the unit apply to each value. */
+typedef enum { CF_KEY_REAL, CF_KEY_STRING, CF_KEY_BOOL, CF_KEY_REAL_LIST } CFKeyType;
 
 /* How a value in the user's unit becomes SI: temperatures C -> K, lengths km -> m, K/km -> K/m. */
 typedef enum { CF_CONV_NONE, CF_CONV_KM, CF_CONV_CELSIUS, CF_CONV_PER_KM } CFConversion;

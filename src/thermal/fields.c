@@ -72,3 +72,17 @@ PetscErrorCode CFSteadyCrustalThickness(CFSteady s, PetscReal *H_melting, PetscR
   *H_side    = global[1] / denom;
   PetscFunctionReturn(0);
 }
+
+PetscErrorCode CFSteadyGetPressure(CFSteady s, Vec P)
+{
+  DMDALocalInfo info;
+  PetscScalar **a;
+
+  PetscFunctionBeginUser;
+  PetscCall(DMDAGetLocalInfo(s->da1, &info));
+  PetscCall(DMDAVecGetArray(s->da1, P, &a));
+  for (PetscInt j = info.ys; j < info.ys + info.ym; j++)
+    for (PetscInt i = info.xs; i < info.xs + info.xm; i++) a[j][i] = CFPressure(&s->rc, (j + 0.5) * s->rc.dz);
+  PetscCall(DMDAVecRestoreArray(s->da1, P, &a));
+  PetscFunctionReturn(0);
+}

@@ -115,7 +115,7 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
   PetscCall(SNESCreate(comm, &s->snes));
   PetscCall(SNESSetDM(s->snes, s->da));
   PetscCall(DMDASNESSetFunctionLocal(s->da, INSERT_VALUES, (DMDASNESFunction)FormFunctionLocal, s));
-  PetscCall(SNESSetTolerances(s->snes, 1e-8, 1e-10, 0.0, 50, PETSC_DEFAULT));
+  PetscCall(SNESSetTolerances(s->snes, 1e-6, 1e-9, 0.0, 50, PETSC_DEFAULT));
   {
     const char *const kinds[] = {"split", "coloring", "CFSteadyJacobian", "", NULL};
     PetscEnum         kind    = 0;

@@ -68,6 +68,8 @@ PetscErrorCode CFDepletionSweep(CFSteady s, Vec X);
 void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x);
 /* Jacobian by coloured differences into J, first-order approximation into P (preconditioner.c). */
 PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ctx);
+/* Fill fine's solution by interpolating coarse's temperature, then the depletion sweep. */
+PetscErrorCode CFSteadyInterpolateFrom(CFSteady fine, CFSteady coarse);
 /* Equilibrium melt fraction of the owned cells for the temperatures of the local array x, into
    s->work_F (and s->work_dF). */
 PetscErrorCode CFSteadyEquilibriumMelt(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x);

@@ -1,0 +1,155 @@
+/* The post-processor's tables: summary.csv (one row), profiles.csv (one row per column) and
+   pt_paths.csv (one row per path point).  Comma-separated, one header line, numbers in the units
+   their column names state, written with 15 significant digits (enough to re-read a figure to
+   round-off); NaN is written "nan".  Rank 0 writes DIR/NAME.tmp and renames it to DIR/NAME
+   when complete, so an interrupted write never leaves a partial table under the real name. */
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+#include <unistd.h>
+#include <crustforge/units.h>
+#include "post_impl.h"
+
+typedef void (*CsvBody)(FILE *fp, const void *ctx);
+
+static void Real(FILE *fp, PetscReal v, const char *end)
+{
+  if (isnan(v)) fputs("nan", fp);
+  else if (isinf(v)) fputs(v > 0 ? "inf" : "-inf", fp);
+  else fprintf(fp, "%.15g", (double)v);
+  fputs(end, fp);
+}
+
+/* Rank 0 only: write the file, "" in msg on success, else a one-line reason. */
+static void WriteOnRoot(const char dir[], const char name[], CsvBody body, const void *ctx, char msg[], size_t len)
+{
+  char  path[PETSC_MAX_PATH_LEN], tmp[PETSC_MAX_PATH_LEN + 8];
+  FILE *fp;
+  int   bad;
+
+  msg[0] = 0;
+  snprintf(path, sizeof(path), "%s/%s", dir, name);
+  snprintf(tmp, sizeof(tmp), "%s.tmp", path);
+  if (!(fp = fopen(tmp, "w"))) {
+    snprintf(msg, len, "cannot write '%s': %s", tmp, strerror(errno));
+    return;
+  }
+  body(fp, ctx);
+  bad = ferror(fp);
+  if (fclose(fp) || bad) snprintf(msg, len, "writing '%s' failed: %s", tmp, strerror(errno));
+  else if (rename(tmp, path)) snprintf(msg, len, "cannot rename '%s' to '%s': %s", tmp, path, strerror(errno));
+  if (msg[0]) (void)unlink(tmp);
+}
+
+static PetscErrorCode WriteCSV(MPI_Comm comm, const char dir[], const char name[], CsvBody body, const void *ctx)
+{
+  PetscMPIInt rank;
+  char        msg[2 * PETSC_MAX_PATH_LEN + 128] = "";
+
+  PetscFunctionBeginUser;
+  PetscCallMPI(MPI_Comm_rank(comm, &rank));
+  if (!rank) WriteOnRoot(dir, name, body, ctx, msg, sizeof(msg));
+  PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, comm));
+  PetscCheck(!msg[0], comm, PETSC_ERR_FILE_WRITE, "%s", msg);
+  PetscFunctionReturn(0);
+}
+
+/* ---- summary.csv: other tools (sweeps, figures) rely on these column names ---------------- */
+typedef struct {
+  const CFRunData      *run;
+  const CFPostSettings *set;
+  const CFSummary      *sum;
+} SummaryCtx;
+
+static void SummaryBody(FILE *fp, const void *ptr)
+{
+  const SummaryCtx     *s = (const SummaryCtx *)ptr;
+  const CFConfig       *c = &s->run->cfg;
+  const CFSummary      *m = s->sum;
+  const CFPostSettings *e = s->set;
+  const struct {
+    const char *name;
+    PetscReal   value;
+  } col[] = {
+    {"full_spreading_rate_mm_yr", c->full_spreading_rate_mm_yr},
+    {"potential_temperature_C", CFKelvinToCelsius(c->potential_temperature)},
+    {"water_ppm", c->water_ppm},
+    {"crustal_thickness_km", CFMToKm(m->crustal_thickness)},
+    {"crustal_thickness_side_flux_km", CFMToKm(m->crustal_thickness_side_flux)},
+    {"melt_onset_depth_km", CFMToKm(m->melt_onset_depth)},
+    {"max_depletion", m->max_depletion},
+    {"mean_melt_fraction", m->mean_melt_fraction},
+    {"mean_melting_pressure_GPa", CFPaToGPa(m->mean_melting_pressure)},
+    {"melt_lens_depth_km", CFMToKm(m->melt_lens_depth)},
+    {"nonlinear_iterations", s->run->nonlinear_iterations >= 0 ? (PetscReal)s->run->nonlinear_iterations : NAN},
+    {"solve_seconds", s->run->solve_seconds},
+    {"regime_mean_melt_fraction", m->regime_mean_melt_fraction},
+    {"melt_flux_kg_m_s", m->melt_flux},
+    {"melting_region_width_km", CFMToKm(m->melting_region_width)},
+    {"melting_region_area_km2", m->melting_region_area * 1.0e-6},
+    {"focusing_width_km", CFMToKm(e->focusing_width)},
+    {"min_depletion", e->min_depletion},
+    {"lid_temperature_C", e->lid_temperature > 0.0 ? CFKelvinToCelsius(e->lid_temperature) : 0.0},
+  };
+  const size_t n = sizeof(col) / sizeof(col[0]);
+
+  for (size_t k = 0; k < n; k++) fprintf(fp, "%s%s", col[k].name, k + 1 < n ? "," : "\n");
+  for (size_t k = 0; k < n; k++) Real(fp, col[k].value, k + 1 < n ? "," : "\n");
+}
+
+PetscErrorCode CFPostWriteSummaryCSV(MPI_Comm comm, const char dir[], const CFRunData *run, const CFPostSettings *set, const CFSummary *sum)
+{
+  SummaryCtx ctx = {run, set, sum};
+
+  PetscFunctionBeginUser;
+  PetscCall(WriteCSV(comm, dir, "summary.csv", SummaryBody, &ctx));
+  PetscFunctionReturn(0);
+}
+
+/* ---- profiles.csv ------------------------------------------------------------------------- */
+static void ProfilesBody(FILE *fp, const void *ptr)
+{
+  const CFProfiles *p = (const CFProfiles *)ptr;
+
+  fputs("distance_km,age_Myr,heat_flow_mW_m2,seafloor_depth_km,lithosphere_thickness_km\n", fp);
+  for (PetscInt i = 0; i < p->n; i++) {
+    Real(fp, CFMToKm(p->x[i]), ",");
+    Real(fp, CFSToMyr(p->age[i]), ",");
+    Real(fp, p->heat_flow[i] * 1.0e3, ",");
+    Real(fp, CFMToKm(p->seafloor_depth[i]), ",");
+    Real(fp, CFMToKm(p->lithosphere_thickness[i]), "\n");
+  }
+}
+
+PetscErrorCode CFPostWriteProfilesCSV(MPI_Comm comm, const char dir[], const CFProfiles *prof)
+{
+  PetscFunctionBeginUser;
+  PetscCall(WriteCSV(comm, dir, "profiles.csv", ProfilesBody, prof));
+  PetscFunctionReturn(0);
+}
+
+/* ---- pt_paths.csv: paths numbered from 1 in the order of pt_paths.start_x ----------------- */
+static void PathsBody(FILE *fp, const void *ptr)
+{
+  const CFPTPaths *p = (const CFPTPaths *)ptr;
+
+  fputs("path,x_km,z_km,time_Myr,pressure_GPa,temperature_C,depletion\n", fp);
+  for (PetscInt q = 0; q < p->npaths; q++)
+    for (PetscInt k = 0; k < p->npoints[q]; k++) {
+      fprintf(fp, "%" PetscInt_FMT ",", q + 1);
+      Real(fp, CFMToKm(p->x[q][k]), ",");
+      Real(fp, CFMToKm(p->z[q][k]), ",");
+      Real(fp, CFSToMyr(p->time[q][k]), ",");
+      Real(fp, CFPaToGPa(p->P[q][k]), ",");
+      Real(fp, CFKelvinToCelsius(p->T[q][k]), ",");
+      Real(fp, p->F[q][k], "\n");
+    }
+}
+
+PetscErrorCode CFPostWritePathsCSV(MPI_Comm comm, const char dir[], const CFPTPaths *paths)
+{
+  PetscFunctionBeginUser;
+  PetscCall(WriteCSV(comm, dir, "pt_paths.csv", PathsBody, paths));
+  PetscFunctionReturn(0);
+}
