@@ -25,12 +25,13 @@ PetscErrorCode CFFiguresAvailable(PetscBool *ok)
   PetscFunctionReturn(0);
 }
 
-/* Okabe & Ito (2008), RGB 0-255, after background white and foreground black. */
+/* Okabe & Ito (2008), RGB 0-255, after background white and foreground black; then greys and
+   the first entry of viridis. */
 static const PLINT Palette[CF_NCOLORS][3] = {
   [CF_COL_BACKGROUND] = {255, 255, 255}, [CF_COL_FOREGROUND] = {0, 0, 0},     [CF_COL_ORANGE] = {230, 159, 0},
   [CF_COL_SKY_BLUE]   = {86, 180, 233},  [CF_COL_GREEN]      = {0, 158, 115}, [CF_COL_YELLOW] = {240, 228, 66},
   [CF_COL_BLUE]       = {0, 114, 178},   [CF_COL_VERMILLION] = {213, 94, 0},  [CF_COL_PURPLE] = {204, 121, 167},
-  [CF_COL_GREY]       = {90, 90, 90},    [CF_COL_WHITE]      = {255, 255, 255},
+  [CF_COL_GREY]       = {90, 90, 90},    [CF_COL_WHITE]      = {255, 255, 255}, [CF_COL_DARK] = {68, 1, 84},
 };
 
 PetscErrorCode CFFigureOpen(const char dir[], const char name[], CFFigure *fig)
@@ -68,6 +69,20 @@ PetscErrorCode CFFigureOpen(const char dir[], const char name[], CFFigure *fig)
   PetscFunctionReturn(0);
 }
 
+/* A complete PNG ends with the IEND chunk: length 0, "IEND", CRC ae 42 60 82 (PNG spec, 11.2.5). */
+static PetscBool EndsWithIEND(const char path[], off_t size)
+{
+  static const unsigned char iend[12] = {0, 0, 0, 0, 'I', 'E', 'N', 'D', 0xae, 0x42, 0x60, 0x82};
+  unsigned char              tail[12];
+  FILE                      *fp = size >= 12 ? fopen(path, "rb") : NULL;
+  PetscBool                  ok = PETSC_FALSE;
+
+  if (!fp) return PETSC_FALSE;
+  if (!fseek(fp, -12L, SEEK_END) && fread(tail, 1, 12, fp) == 12) ok = (PetscBool)!memcmp(tail, iend, 12);
+  fclose(fp);
+  return ok;
+}
+
 PetscErrorCode CFFigureClose(CFFigure *fig)
 {
   struct stat st;
@@ -75,9 +90,9 @@ PetscErrorCode CFFigureClose(CFFigure *fig)
   PetscFunctionBeginUser;
   plend1();
   plsstrm(fig->previous);
-  if (stat(fig->tmp, &st) || st.st_size == 0) {
+  if (stat(fig->tmp, &st) || !EndsWithIEND(fig->tmp, st.st_size)) {
     (void)unlink(fig->tmp);
-    SETERRQ(PETSC_COMM_SELF, PETSC_ERR_FILE_WRITE, "figure %s: PLplot wrote nothing", fig->path);
+    SETERRQ(PETSC_COMM_SELF, PETSC_ERR_FILE_WRITE, "figure %s: PLplot did not write a complete PNG (disk full?)", fig->path);
   }
   if (rename(fig->tmp, fig->path)) {
     const int e = errno;
@@ -172,20 +187,22 @@ PetscErrorCode CFFigureScenarioText(const CFConfig *cfg, char text[], size_t len
   PetscFunctionReturn(0);
 }
 
-void CFFigureLegend(PetscInt n, const CFLegendEntry e[], PLINT position, PLINT ncolumn)
+void CFFigureLegend(PetscInt n, const CFLegendEntry e[], PLINT position, PLINT ncolumn, PLFLT x, PLFLT y)
 {
-  PLINT       opt[16], text_col[16], line_col[16], line_sty[16], sym_col[16], sym_num[16];
-  PLFLT       line_w[16], sym_scale[16], width, height;
-  const char *text[16], *sym[16];
+  PLINT       opt[24], text_col[24], box_col[24], box_pat[24], line_col[24], line_sty[24], sym_col[24], sym_num[24];
+  PLFLT       box_scale[24], box_w[24], line_w[24], sym_scale[24], width, height;
+  const char *text[24], *sym[24];
 
-  const PLFLT x = (position & PL_POSITION_OUTSIDE) ? 0.0 : 0.02, y = (position & PL_POSITION_OUTSIDE) ? 0.1 : 0.03;
-
-  n = PetscMin(n, 16);
+  n = PetscMin(n, 24);
   for (PetscInt k = 0; k < n; k++) {
-    opt[k]       = (e[k].style > 0 ? PL_LEGEND_LINE : 0) | (e[k].symbol ? PL_LEGEND_SYMBOL : 0);
+    opt[k] = (e[k].style > 0 ? PL_LEGEND_LINE : 0) | (e[k].symbol ? PL_LEGEND_SYMBOL : 0) | (e[k].swatch ? PL_LEGEND_COLOR_BOX : 0);
     if (!opt[k]) opt[k] = PL_LEGEND_NONE;
     text[k]      = e[k].text;
     text_col[k]  = CF_COL_FOREGROUND;
+    box_col[k]   = e[k].swatch;
+    box_pat[k]   = 0;
+    box_scale[k] = 0.8;
+    box_w[k]     = 1.0;
     line_col[k]  = e[k].color;
     line_sty[k]  = e[k].style > 0 ? e[k].style : 1;
     line_w[k]    = e[k].width;
@@ -194,5 +211,7 @@ void CFFigureLegend(PetscInt n, const CFLegendEntry e[], PLINT position, PLINT n
     sym_num[k]   = 1;
     sym[k]       = e[k].symbol ? e[k].symbol : "";
   }
-  pllegend(&width, &height, PL_LEGEND_BACKGROUND | PL_LEGEND_BOUNDING_BOX | (ncolumn > 1 ? PL_LEGEND_ROW_MAJOR : 0), position | PL_POSITION_VIEWPORT, x, y, 0.06, CF_COL_BACKGROUND, CF_COL_FOREGROUND, 1, ncolumn > 1 ? 1 : 0, ncolumn > 1 ? ncolumn : 0, (PLINT)n, opt, 1.0, 0.9, 2.0, 0.0, text_col, text, NULL, NULL, NULL, NULL, line_col, line_sty, line_w, sym_col, sym_scale, sym_num, sym);
+  pllegend(&width, &height, PL_LEGEND_BACKGROUND | PL_LEGEND_BOUNDING_BOX | (ncolumn > 1 ? PL_LEGEND_ROW_MAJOR : 0), position | PL_POSITION_VIEWPORT, x, y, 0.06, CF_COL_BACKGROUND, CF_COL_FOREGROUND, 1, ncolumn > 1 ? 1 : 0, ncolumn > 1 ? ncolumn : 0, (PLINT)n, opt, 1.0, 0.9, 2.0, 0.0, text_col, text, box_col, box_pat, box_scale, box_w, line_col, line_sty, line_w, sym_col, sym_scale, sym_num, sym);
+  pllsty(1);
+  plwidth(1.0);
 }

@@ -25,6 +25,7 @@ enum {
   CF_COL_PURPLE,
   CF_COL_GREY,
   CF_COL_WHITE,
+  CF_COL_DARK,  /* the dark end of viridis, behind white lines in a legend */
   CF_NCOLORS
 };
 
@@ -41,7 +42,7 @@ PETSC_INTERN PetscErrorCode CFFigureOpen(const char dir[], const char name[], CF
 PETSC_INTERN PetscErrorCode CFFigureClose(CFFigure *fig);
 
 /* Character height and line widths for the figure size (1200 x 800 px). */
-#define CF_FIG_TEXT_SCALE 1.6
+#define CF_FIG_TEXT_SCALE 1.0
 #define CF_FIG_LINE_WIDTH 2.0
 
 PETSC_INTERN void CFFigureSetColorMap(CFColorMap map);
@@ -52,17 +53,20 @@ PETSC_INTERN PetscBool CFFigureRange(PetscInt n, const PetscReal v[], PetscReal 
 /* "full spreading rate 60 mm/yr, T_p 1350 C, water 100 ppm" as PLplot text. */
 PETSC_INTERN PetscErrorCode CFFigureScenarioText(const CFConfig *cfg, char text[], size_t len);
 
-/* One legend entry: a line (style > 0), a symbol (symbol != NULL), or both. */
+/* One legend entry: a line (style > 0), a symbol (symbol != NULL), or both, over a swatch of
+   colour swatch (0, the background: none) for lines that are light on dark images. */
 typedef struct {
   const char *text;
   PLINT       color, style;
   PLFLT       width;
   const char *symbol;
+  PLINT       swatch;
 } CFLegendEntry;
 
 /* A framed legend on a white background at position (PL_POSITION_* relative to the viewport,
-   INSIDE or OUTSIDE); ncolumn > 1 lays the entries out in one row of that many columns. */
-PETSC_INTERN void CFFigureLegend(PetscInt n, const CFLegendEntry e[], PLINT position, PLINT ncolumn);
+   INSIDE or OUTSIDE), offset by x, y (viewport units, away from the edge); ncolumn > 1 lays
+   the entries out in one row of that many columns. */
+PETSC_INTERN void CFFigureLegend(PetscInt n, const CFLegendEntry e[], PLINT position, PLINT ncolumn, PLFLT x, PLFLT y);
 /* Relative luminance (0 dark .. 1 light) of the colour map at v in [0,1], to pick contour
    colours that stand out from the image under them. */
 PETSC_INTERN PetscReal CFFigureColorMapLuminance(CFColorMap map, PetscReal v);

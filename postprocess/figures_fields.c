@@ -6,16 +6,16 @@
 
 #define CF_FIG_DEFAULT_DEPTH  150.0e3 /* m: the mantle where melting and plate cooling happen */
 #define CF_FIG_NSTREAMLINES   12
-#define CF_FIG_MELT_THRESHOLD 1.0e-3  /* outline at this fraction of the largest melting rate */
+#define CF_FIG_MELT_THRESHOLD 1.0e-2  /* outline at this fraction of the largest melting rate */
 #define CF_FIG_NBAR           256
 
-/* One cell field cut to the window, as PLplot wants it (z[i][j], i along x, j down). */
+/* One cell field cut to the window, as PLplot wants it ([i][j], i along x, j down). */
 typedef struct {
   PetscInt  ni, nj;
-  PLFLT   **z, *zdata, *xc, *zc; /* values; cell centres (km) */
-  PetscReal lo, hi;              /* finite range */
-  PetscBool any;                 /* any finite value */
-  PLFLT     below;               /* stands in for NaN: under every contour level and colour */
+  PLFLT   **img, **con;   /* for the image: NaN below every colour (not drawn); for contours: NaN filled */
+  PLFLT    *data, *xc, *zc; /* storage; cell centres (km) */
+  PetscReal lo, hi;       /* finite range */
+  PetscBool any;          /* any finite value */
 } CFFieldGrid;
 
 typedef struct {
@@ -24,42 +24,70 @@ typedef struct {
   PetscReal   scale, offset; /* plotted = scale * SI + offset */
   CFColorMap  cmap;
   PetscReal   contour_step;  /* labelled contours of the field, plotted unit; < 0: a round step, 0: none */
-  PLINT       stream_color, outline_color;
+  const char *contour_name, *contour_unit;
+  PLINT       stream_color, stream_swatch, outline_color;
 } CFFieldFigure;
+
+/* Contours cannot skip a cell, so a missing value takes the mean of its finite neighbours
+   (repeatedly, for holes wider than a cell): the lines cross a hole instead of ringing it. */
+static void FillHoles(PetscInt ni, PetscInt nj, PLFLT **c, PLFLT missing)
+{
+  for (PetscInt pass = 0, left = 1; left && pass < 64; pass++) {
+    left = 0;
+    for (PetscInt i = 0; i < ni; i++)
+      for (PetscInt j = 0; j < nj; j++) {
+        PetscReal sum = 0;
+        PetscInt  n   = 0;
+        if (!PetscIsInfOrNanReal(c[i][j])) continue;
+        if (i > 0 && !PetscIsInfOrNanReal(c[i - 1][j])) sum += c[i - 1][j], n++;
+        if (i < ni - 1 && !PetscIsInfOrNanReal(c[i + 1][j])) sum += c[i + 1][j], n++;
+        if (j > 0 && !PetscIsInfOrNanReal(c[i][j - 1])) sum += c[i][j - 1], n++;
+        if (j < nj - 1 && !PetscIsInfOrNanReal(c[i][j + 1])) sum += c[i][j + 1], n++;
+        if (n) c[i][j] = sum / n; /* uses values filled earlier in this pass: fine for a picture */
+        else left = 1;
+      }
+  }
+  for (PetscInt i = 0; i < ni; i++)
+    for (PetscInt j = 0; j < nj; j++)
+      if (PetscIsInfOrNanReal(c[i][j])) c[i][j] = missing;
+}
 
 static PetscErrorCode FieldGridCreate(const CFRunData *run, CFFieldId id, PetscReal scale, PetscReal offset, PetscReal wx, PetscReal wz, CFFieldGrid *g)
 {
   const PetscReal *f = run->field[id];
+  PLFLT            below;
 
   PetscFunctionBeginUser;
   g->ni = PetscMin(run->nx, (PetscInt)PetscCeilReal(wx / run->dx - 1e-9));
   g->nj = PetscMin(run->nz, (PetscInt)PetscCeilReal(wz / run->dz - 1e-9));
-  PetscCall(PetscMalloc4(g->ni, &g->z, g->ni * g->nj, &g->zdata, g->ni, &g->xc, g->nj, &g->zc));
+  PetscCall(PetscMalloc5(g->ni, &g->img, g->ni, &g->con, 2 * g->ni * g->nj, &g->data, g->ni, &g->xc, g->nj, &g->zc));
   for (PetscInt i = 0; i < g->ni; i++) g->xc[i] = CFMToKm((i + 0.5) * run->dx);
   for (PetscInt j = 0; j < g->nj; j++) g->zc[j] = CFMToKm((j + 0.5) * run->dz);
   for (PetscInt i = 0; i < g->ni; i++) {
-    g->z[i] = g->zdata + i * g->nj;
-    for (PetscInt j = 0; j < g->nj; j++) g->z[i][j] = scale * f[j * run->nx + i] + offset;
+    g->img[i] = g->data + i * g->nj;
+    g->con[i] = g->data + (g->ni + i) * g->nj;
+    for (PetscInt j = 0; j < g->nj; j++) g->img[i][j] = g->con[i][j] = scale * f[j * run->nx + i] + offset;
   }
-  g->any = CFFigureRange(g->ni * g->nj, g->zdata, &g->lo, &g->hi);
+  g->any = CFFigureRange(g->ni * g->nj, g->data, &g->lo, &g->hi);
   if (!g->any) g->lo = g->hi = 0.0;
-  g->below = g->lo - 1.0 - 1.0e3 * (g->hi - g->lo);
+  below = g->lo - 1.0 - 1.0e3 * (g->hi - g->lo); /* under every colour and contour level */
   for (PetscInt k = 0; k < g->ni * g->nj; k++)
-    if (PetscIsInfOrNanReal(g->zdata[k])) g->zdata[k] = g->below;
+    if (PetscIsInfOrNanReal(g->data[k])) g->data[k] = below;
+  FillHoles(g->ni, g->nj, g->con, below);
   PetscFunctionReturn(0);
 }
 
 static PetscErrorCode FieldGridDestroy(CFFieldGrid *g)
 {
   PetscFunctionBeginUser;
-  PetscCall(PetscFree4(g->z, g->zdata, g->xc, g->zc));
+  PetscCall(PetscFree5(g->img, g->con, g->data, g->xc, g->zc));
   PetscFunctionReturn(0);
 }
 
 static void Contours(const CFFieldGrid *g, PetscInt n, const PLFLT levels[])
 {
   PLcGrid cg = {g->xc, g->zc, NULL, (PLINT)g->ni, (PLINT)g->nj, 0};
-  if (n > 0 && g->ni > 1 && g->nj > 1) plcont((const PLFLT *const *)g->z, (PLINT)g->ni, (PLINT)g->nj, 1, (PLINT)g->ni, 1, (PLINT)g->nj, levels, (PLINT)n, pltr1, &cg);
+  if (n > 0 && g->ni > 1 && g->nj > 1) plcont((const PLFLT *const *)g->con, (PLINT)g->ni, (PLINT)g->nj, 1, (PLINT)g->ni, 1, (PLINT)g->nj, levels, (PLINT)n, pltr1, &cg);
 }
 
 /* A step of 1, 2 or 5 times a power of ten giving about n intervals over range. */
@@ -87,10 +115,10 @@ static PetscErrorCode FieldPlotDraw(const CFRunData *run, const CFFieldPlot *fp,
 
   PetscFunctionBeginUser;
   PetscCall(CFFigureOpen(dir, spec->file, &fig));
-  plvpor(0.08, 0.84, 0.19, 0.89);
+  plvpor(0.09, 0.85, 0.13, 0.88);
   plwind(0.0, CFMToKm(fp->wx), CFMToKm(fp->wz), 0.0); /* depth increases downward */
   CFFigureSetColorMap(spec->cmap);
-  if (val->any) plimagefr((const PLFLT *const *)val->z, (PLINT)val->ni, (PLINT)val->nj, 0.0, CFMToKm(val->ni * run->dx), 0.0, CFMToKm(val->nj * run->dz), PetscMin(fp->vlo, val->lo), fp->vhi, fp->vlo, fp->vhi, NULL, NULL);
+  if (val->any) plimagefr((const PLFLT *const *)val->img, (PLINT)val->ni, (PLINT)val->nj, 0.0, CFMToKm(val->ni * run->dx), 0.0, CFMToKm(val->nj * run->dz), PetscMin(fp->vlo, val->lo), fp->vhi, fp->vlo, fp->vhi, NULL, NULL);
 
   /* streamlines under the labelled contours */
   plwidth(1.5);
@@ -105,18 +133,22 @@ static PetscErrorCode FieldPlotDraw(const CFRunData *run, const CFFieldPlot *fp,
   }
   /* each contour in black or white, whichever stands out from the colour under it */
   plwidth(1.5);
-  pl_setcontlabelformat(5, 2);
-  pl_setcontlabelparam(0.008, 0.45, 0.35, 1);
+  pl_setcontlabelparam(0.008, 0.6, 0.35, 1);
   for (PetscInt k = 0; k < fp->nlevels; k++) {
+    /* PLplot writes sigdig - 1 - floor(log10 v) decimals: give every label the step's decimals */
+    const int e = (int)PetscFloorReal(PetscLog10Real(fp->levels[k]) + 1e-9), decimals = PetscMax(0, -(int)PetscFloorReal(PetscLog10Real(fp->step) + 1e-9));
+    pl_setcontlabelformat(10, PetscMax(1, decimals + 1 + e));
     plcol0(CFFigureColorMapLuminance(spec->cmap, (fp->levels[k] - fp->vlo) / (fp->vhi - fp->vlo)) < 0.2 ? CF_COL_WHITE : CF_COL_FOREGROUND);
     Contours(val, 1, &fp->levels[k]);
   }
+  /* these two settings are process-wide in PLplot (statics in plcont.c, no getter): put back its defaults */
   pl_setcontlabelparam(0.006, 0.3, 0.1, 0);
+  pl_setcontlabelformat(4, 2);
 
   plwidth(1.0);
   plcol0(CF_COL_FOREGROUND);
   plbox("bcnst", 0.0, 0, "bcnstv", 0.0, 0);
-  plmtex("b", 2.6, 0.5, 0.5, "Distance from axis (km)");
+  plmtex("b", 3.0, 0.5, 0.5, "Distance from axis (km)");
   plmtex("l", 3.6, 0.5, 0.5, "Depth (km)");
   plmtex("t", 2.4, 0.5, 0.5, spec->title);
   plschr(0.0, 0.8 * CF_FIG_TEXT_SCALE);
@@ -134,11 +166,11 @@ static PetscErrorCode FieldPlotDraw(const CFRunData *run, const CFFieldPlot *fp,
     PetscInt      n = 0;
     if (fp->nlevels) {
       (void)snprintf(contour_text, sizeof(contour_text), "%s every %g%s", spec->contour_name, (double)fp->step, spec->contour_unit);
-      e[n++] = (CFLegendEntry){contour_text, CF_COL_FOREGROUND, 1, 1.5, NULL};
+      e[n++] = (CFLegendEntry){contour_text, CF_COL_FOREGROUND, 1, 1.5, NULL, 0};
     }
-    e[n++] = (CFLegendEntry){"streamlines", spec->stream_color, 2, 1.5, NULL};
-    if (fp->show_melt) e[n++] = (CFLegendEntry){"melting region", spec->outline_color, 1, 3.0, NULL};
-    CFFigureLegend(n, e, PL_POSITION_BOTTOM | PL_POSITION_OUTSIDE, (PLINT)n);
+    if (fp->psi.any && fp->psi.hi > fp->psi.lo) e[n++] = (CFLegendEntry){"streamlines", spec->stream_color, 2, 1.5, NULL, spec->stream_swatch};
+    if (fp->show_melt) e[n++] = (CFLegendEntry){"melting region", spec->outline_color, 1, 3.0, NULL, 0};
+    if (n) CFFigureLegend(n, e, PL_POSITION_RIGHT | PL_POSITION_BOTTOM | PL_POSITION_INSIDE, 1, 0.02, 0.03); /* deep and far out: least to see */
   }
   PetscCall(CFFigureClose(&fig));
   PetscFunctionReturn(0);
@@ -185,7 +217,7 @@ static PetscErrorCode FieldFigure(const CFRunData *run, const CFFigureWindow *wi
 
 PetscErrorCode CFFigureTemperature(const CFRunData *run, const CFFigureWindow *window, const char dir[])
 {
-  const CFFieldFigure spec = {"temperature.png", "Temperature", "Temperature (°C)", CF_FIELD_TEMPERATURE, 1.0, -CF_KELVIN_OFFSET, CF_CMAP_INFERNO, 200.0, CF_COL_SKY_BLUE, CF_COL_GREEN};
+  const CFFieldFigure spec = {"temperature.png", "Temperature", "Temperature (°C)", CF_FIELD_TEMPERATURE, 1.0, -CF_KELVIN_OFFSET, CF_CMAP_INFERNO, 200.0, "isotherms", " °C", CF_COL_SKY_BLUE, 0, CF_COL_GREEN};
 
   PetscFunctionBeginUser;
   PetscCall(FieldFigure(run, window, dir, &spec));
@@ -194,7 +226,7 @@ PetscErrorCode CFFigureTemperature(const CFRunData *run, const CFFigureWindow *w
 
 PetscErrorCode CFFigureDepletion(const CFRunData *run, const CFFigureWindow *window, const char dir[])
 {
-  const CFFieldFigure spec = {"depletion.png", "Depletion (melt fraction extracted)", "Depletion F#dd#u (1)", CF_FIELD_DEPLETION, 1.0, 0.0, CF_CMAP_VIRIDIS, -1.0, CF_COL_WHITE, CF_COL_VERMILLION};
+  const CFFieldFigure spec = {"depletion.png", "Depletion (melt fraction extracted)", "Depletion F#dd#u (1)", CF_FIELD_DEPLETION, 1.0, 0.0, CF_CMAP_VIRIDIS, -1.0, "contours", "", CF_COL_WHITE, CF_COL_DARK, CF_COL_VERMILLION};
 
   PetscFunctionBeginUser;
   PetscCall(FieldFigure(run, window, dir, &spec));
@@ -204,7 +236,7 @@ PetscErrorCode CFFigureDepletion(const CFRunData *run, const CFFigureWindow *win
 PetscErrorCode CFFigureMeltingRate(const CFRunData *run, const CFFigureWindow *window, const char dir[])
 {
   /* per Myr: kg m-3 s-1 values are of order 1e-12 */
-  const CFFieldFigure spec = {"melting_rate.png", "Melting rate", "Melting rate (kg m#u-3#d Myr#u-1#d)", CF_FIELD_MELTING_RATE, CFMyrToS(1.0), 0.0, CF_CMAP_VIRIDIS, 0.0, CF_COL_WHITE, CF_COL_VERMILLION};
+  const CFFieldFigure spec = {"melting_rate.png", "Melting rate", "Melting rate (kg m⁻³ Myr⁻¹)", CF_FIELD_MELTING_RATE, CFMyrToS(1.0), 0.0, CF_CMAP_VIRIDIS, 0.0, NULL, NULL, CF_COL_WHITE, CF_COL_DARK, CF_COL_VERMILLION};
 
   PetscFunctionBeginUser;
   PetscCall(FieldFigure(run, window, dir, &spec));

@@ -11,6 +11,9 @@
 static const PLINT PathColors[] = {CF_COL_ORANGE, CF_COL_SKY_BLUE, CF_COL_GREEN, CF_COL_BLUE, CF_COL_VERMILLION, CF_COL_PURPLE, CF_COL_YELLOW};
 #define CF_FIG_NPATHCOLORS ((PetscInt)(sizeof(PathColors) / sizeof(PathColors[0])))
 
+/* Paths share the adiabat at depth: earlier ones wider, so each shows beside the later ones. */
+static PLFLT PathWidth(PetscInt p, PetscInt n) { return CF_FIG_LINE_WIDTH + PetscMin(6.0, 1.5 * (n - 1 - p)); }
+
 /* Everything the diagram shows, prepared before its stream is opened. */
 typedef struct {
   PetscInt  npaths, npoints[CF_MAX_PATHS], onset[CF_MAX_PATHS];
@@ -34,8 +37,8 @@ static PetscErrorCode PathsPlotDraw(const CFPathsPlot *pp, const char dir[])
   pllsty(3);
   CFFigureLine(CF_FIG_NCURVE, pp->liq_C, pp->curve_P_GPa);
   pllsty(1);
-  plwidth(CF_FIG_LINE_WIDTH);
   for (PetscInt p = 0; p < pp->npaths; p++) {
+    plwidth(PathWidth(p, pp->npaths));
     plcol0(PathColors[p % CF_FIG_NPATHCOLORS]);
     pllsty(1 + (PLINT)(p / CF_FIG_NPATHCOLORS));
     CFFigureLine(pp->npoints[p], pp->T_C[p], pp->P_GPa[p]);
@@ -45,7 +48,7 @@ static PetscErrorCode PathsPlotDraw(const CFPathsPlot *pp, const char dir[])
   plwidth(1.0);
   plcol0(CF_COL_FOREGROUND);
   plbox("bcnst", 0.0, 0, "bnstv", 0.0, 0);
-  plmtex("b", 2.6, 0.5, 0.5, "Temperature (°C)");
+  plmtex("b", 3.0, 0.5, 0.5, "Temperature (°C)");
   plmtex("l", 3.6, 0.5, 0.5, "Pressure (GPa)");
   plmtex("t", 2.4, 0.5, 0.5, "Pressure-temperature paths of mantle parcels");
   plschr(0.0, 0.8 * CF_FIG_TEXT_SCALE);
@@ -58,11 +61,11 @@ static PetscErrorCode PathsPlotDraw(const CFPathsPlot *pp, const char dir[])
   {
     CFLegendEntry e[CF_MAX_PATHS + 3];
     PetscInt      n = 0;
-    e[n++] = (CFLegendEntry){"solidus", CF_COL_FOREGROUND, 1, CF_FIG_LINE_WIDTH + 1.0, NULL};
-    e[n++] = (CFLegendEntry){"liquidus", CF_COL_FOREGROUND, 3, CF_FIG_LINE_WIDTH + 1.0, NULL};
-    for (PetscInt p = 0; p < pp->npaths; p++) e[n++] = (CFLegendEntry){pp->text[p], PathColors[p % CF_FIG_NPATHCOLORS], 1 + (PLINT)(p / CF_FIG_NPATHCOLORS), CF_FIG_LINE_WIDTH, NULL};
-    e[n++] = (CFLegendEntry){"melting begins", CF_COL_FOREGROUND, 0, 0.0, "●"};
-    CFFigureLegend(n, e, PL_POSITION_LEFT | PL_POSITION_BOTTOM | PL_POSITION_INSIDE, 1);
+    e[n++] = (CFLegendEntry){"solidus", CF_COL_FOREGROUND, 1, CF_FIG_LINE_WIDTH + 1.0, NULL, 0};
+    e[n++] = (CFLegendEntry){"liquidus", CF_COL_FOREGROUND, 3, CF_FIG_LINE_WIDTH + 1.0, NULL, 0};
+    for (PetscInt p = 0; p < pp->npaths; p++) e[n++] = (CFLegendEntry){pp->text[p], PathColors[p % CF_FIG_NPATHCOLORS], 1 + (PLINT)(p / CF_FIG_NPATHCOLORS), PathWidth(p, pp->npaths), NULL, 0};
+    e[n++] = (CFLegendEntry){"melting begins", CF_COL_FOREGROUND, 0, 0.0, "●", 0};
+    CFFigureLegend(n, e, PL_POSITION_LEFT | PL_POSITION_BOTTOM | PL_POSITION_INSIDE, 1, 0.02, 0.03);
   }
   PetscCall(CFFigureClose(&fig));
   PetscFunctionReturn(0);

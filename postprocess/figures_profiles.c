@@ -1,6 +1,7 @@
 /* Surface observables against plate age: the model's heat flow and seafloor depth beside
    half-space cooling with the run's parameters and the empirical fits of Parsons & Sclater
    (1977) and Stein & Stein (1992). */
+#include <string.h>
 #include <crustforge/units.h>
 #include "figures_common.h"
 
@@ -33,7 +34,7 @@ static PetscErrorCode ProfilePlotDraw(const CFProfilePlot *pp, const char dir[])
 
   PetscFunctionBeginUser;
   PetscCall(CFFigureOpen(dir, q ? "heat_flow.png" : "seafloor_depth.png", &fig));
-  plvpor(0.1, 0.95, 0.12, 0.84);
+  plvpor(0.1, 0.95, 0.12, 0.78);
   /* heat flow up; seafloor depth down, as on a bathymetric section */
   if (q) plwind(0.0, pp->age_max_myr, pp->ylo, pp->yhi);
   else plwind(0.0, pp->age_max_myr, pp->yhi, pp->ylo);
@@ -42,35 +43,42 @@ static PetscErrorCode ProfilePlotDraw(const CFProfilePlot *pp, const char dir[])
     pllsty(CurveStyle[c]);
     plwidth(CurveWidth[c]);
     CFFigureLine(pp->n[c], pp->age_myr[c], pp->y[c]);
-    e[c] = (CFLegendEntry){pp->text[c], CurveColor[c], CurveStyle[c], CurveWidth[c], NULL};
+    e[c] = (CFLegendEntry){pp->text[c], CurveColor[c], CurveStyle[c], CurveWidth[c], NULL, 0};
   }
   pllsty(1);
   plwidth(1.0);
   plcol0(CF_COL_FOREGROUND);
   plbox("bnst", 0.0, 0, "bcnstv", 0.0, 0);
-  plmtex("b", 2.6, 0.5, 0.5, "Plate age (Myr)");
-  plmtex("l", 4.6, 0.5, 0.5, q ? "Surface heat flow (mW m#u-2#d)" : "Seafloor depth (m)");
-  plmtex("t", 4.4, 0.5, 0.5, q ? "Surface heat flow against plate age" : "Seafloor depth against plate age");
+  plmtex("b", 3.0, 0.5, 0.5, "Plate age (Myr)");
+  plmtex("l", 4.6, 0.5, 0.5, q ? "Surface heat flow (mW m⁻²)" : "Seafloor depth (m)");
+  plmtex("t", 6.0, 0.5, 0.5, q ? "Surface heat flow against plate age" : "Seafloor depth against plate age");
   plschr(0.0, 0.8 * CF_FIG_TEXT_SCALE);
-  plmtex("t", 3.2, 0.5, 0.5, pp->subtitle);
+  plmtex("t", 4.5 / 0.8, 0.5, 0.5, pp->subtitle); /* in the smaller characters */
   plschr(0.0, CF_FIG_TEXT_SCALE);
   if (pp->x_max_km > 0) { /* distance from the axis along the top: age = x / U0 */
     plwind(0.0, pp->x_max_km, 0.0, 1.0);
     plbox("cmst", 0.0, 0, "", 0.0, 0);
-    plmtex("t", 1.9, 0.5, 0.5, "Distance from axis (km)");
+    plmtex("t", 2.8, 0.5, 0.5, "Distance from axis (km)");
   }
-  CFFigureLegend(CF_FIG_NCURVES, e, PL_POSITION_RIGHT | PL_POSITION_TOP | PL_POSITION_INSIDE, 1);
+  CFFigureLegend(CF_FIG_NCURVES, e, PL_POSITION_RIGHT | PL_POSITION_TOP | PL_POSITION_INSIDE, 1, 0.02, 0.03);
   PetscCall(CFFigureClose(&fig));
   PetscFunctionReturn(0);
 }
 
-/* v as "1.2×10^-6" in PLplot's superscript escapes (or plain %g between 0.01 and 10^4). */
+/* v as "1.2×10⁻⁶" (or plain %g between 0.01 and 10^4), with Unicode superscripts. */
 static void FormatPow10(PetscReal v, char text[], size_t len)
 {
-  const int e = (v > 0) ? (int)PetscFloorReal(PetscLog10Real(v)) : 0;
+  static const char *const sup[10] = {"⁰", "¹", "²", "³", "⁴", "⁵", "⁶", "⁷", "⁸", "⁹"};
+  const int                e       = (v > 0) ? (int)PetscFloorReal(PetscLog10Real(v)) : 0;
+  char                     digits[16], exp[64] = "";
 
-  if (!(v > 0) || (e >= -2 && e < 4)) (void)snprintf(text, len, "%g", (double)v);
-  else (void)snprintf(text, len, "%.2g×10#u%d#d", (double)(v / PetscPowReal(10.0, e)), e);
+  if (!(v > 0) || (e >= -2 && e < 4)) {
+    (void)snprintf(text, len, "%g", (double)v);
+    return;
+  }
+  (void)snprintf(digits, sizeof(digits), "%d", e);
+  for (const char *c = digits; *c; c++) (void)strncat(exp, *c == '-' ? "⁻" : sup[*c - '0'], sizeof(exp) - strlen(exp) - 1);
+  (void)snprintf(text, len, "%.2g×10%s", (double)(v / PetscPowReal(10.0, e)), exp);
 }
 
 static PetscErrorCode ProfileFigure(const CFRunData *run, const CFProfiles *prof, PetscReal ridge_depth, CFProfileKind kind, const char dir[])
@@ -133,8 +141,8 @@ static PetscErrorCode ProfileFigure(const CFRunData *run, const CFProfiles *prof
   (void)snprintf(pp->text[0], sizeof(pp->text[0]), "model");
   FormatPow10(cp.diffusivity, kappa, sizeof(kappa));
   FormatPow10(cp.expansivity, alpha, sizeof(alpha));
-  if (q) (void)snprintf(pp->text[1], sizeof(pp->text[1]), "half-space cooling (k %g W m#u-1#d K#u-1#d, κ %s m#u2#d s#u-1#d, ΔT %g K)", (double)cp.conductivity, kappa, (double)cp.temperature_difference);
-  else (void)snprintf(pp->text[1], sizeof(pp->text[1]), "half-space cooling from %g m (α %s K#u-1#d, ΔT %g K)", (double)ridge_depth, alpha, (double)cp.temperature_difference);
+  if (q) (void)snprintf(pp->text[1], sizeof(pp->text[1]), "half-space cooling (k %g W m⁻¹ K⁻¹, κ %s m² s⁻¹, ΔT %g K)", (double)cp.conductivity, kappa, (double)cp.temperature_difference);
+  else (void)snprintf(pp->text[1], sizeof(pp->text[1]), "half-space cooling from %g m (α %s K⁻¹, ΔT %g K)", (double)ridge_depth, alpha, (double)cp.temperature_difference);
   for (PetscInt f = 0; f < CF_NFITS; f++) (void)snprintf(pp->text[2 + f], sizeof(pp->text[2 + f]), "%s", CFEmpiricalFitName((CFEmpiricalFit)f));
   PetscCall(CFFigureScenarioText(&run->cfg, pp->subtitle, sizeof(pp->subtitle)));
 

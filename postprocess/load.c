@@ -45,16 +45,14 @@ static PetscErrorCode ReadFields(MPI_Comm comm, CFRunReader r, CFRunData *data)
   PetscFunctionReturn(0);
 }
 
-PetscErrorCode CFRunDataLoad(MPI_Comm comm, const char path[], int argc, char **argv, CFRunData *data)
+/* Everything after opening, so that the reader is destroyed whatever fails. */
+static PetscErrorCode LoadFromReader(MPI_Comm comm, CFRunReader r, const char path[], int argc, char **argv, CFRunData *data)
 {
-  CFRunReader r;
-  CFConfig    cfg;
-  PetscInt    nx, nz;
-  PetscBool   has;
+  CFConfig  cfg;
+  PetscInt  nx, nz;
+  PetscBool has;
 
   PetscFunctionBeginUser;
-  PetscCall(PetscMemzero(data, sizeof(*data)));
-  PetscCall(CFRunReaderOpen(comm, path, &r));
   PetscCall(CFRunReaderInsertScenario(r, NULL));
   /* PetscInitialize put the command line in first; again now, so that it wins over the file */
   if (argc > 1) PetscCall(PetscOptionsInsertArgs(NULL, argc - 1, argv + 1));
@@ -69,6 +67,20 @@ PetscErrorCode CFRunDataLoad(MPI_Comm comm, const char path[], int argc, char **
   PetscCall(OptionalInt(r, "linear_iterations", &data->linear_iterations));
   PetscCall(OptionalReal(r, "residual_norm", &data->residual_norm));
   PetscCall(OptionalReal(r, "solve_seconds", &data->solve_seconds));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFRunDataLoad(MPI_Comm comm, const char path[], int argc, char **argv, CFRunData *data)
+{
+  CFRunReader    r;
+  PetscErrorCode ierr;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscMemzero(data, sizeof(*data)));
+  PetscCall(CFRunReaderOpen(comm, path, &r));
+  ierr = LoadFromReader(comm, r, path, argc, argv, data);
   PetscCall(CFRunReaderDestroy(&r));
+  if (ierr) PetscCall(CFRunDataDestroy(data));
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }

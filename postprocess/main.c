@@ -101,12 +101,28 @@ static PetscErrorCode RunPaths(const char arg[], char file[], char dir[])
   PetscFunctionReturn(0);
 }
 
+/* Where to write (never the run's own directory unless asked, and never by the run's own
+   output.overwrite), then the post-processing. */
+static PetscErrorCode PostLoaded(int argc, char **argv, const char file[], const char dir[], PetscBool figures, const CFRunData *run)
+{
+  CFConfig       out = run->cfg;
+  CFPostSettings set;
+
+  PetscFunctionBeginUser;
+  if (!Given(argc, argv, "-output_dir")) PetscCall(PetscSNPrintf(out.output_dir, sizeof(out.output_dir), "%s/post", dir));
+  if (!Given(argc, argv, "-output_overwrite")) out.output_overwrite = PETSC_FALSE;
+  PetscCall(CFOutputDirPrepare(PETSC_COMM_WORLD, &out));
+  PetscCall(PetscPrintf(PETSC_COMM_WORLD, "crustforge-post: %s (%" PetscInt_FMT " x %" PetscInt_FMT " cells, %s)\n", file, run->nx, run->nz, run->cfg.melting_model));
+  PetscCall(CFPostSettingsFromConfig(&run->cfg, &set));
+  PetscCall(CFPostRun(PETSC_COMM_WORLD, run, &set, out.output_dir, figures));
+  PetscFunctionReturn(0);
+}
+
 static PetscErrorCode Post(int argc, char **argv)
 {
   CFRunData      run;
-  CFConfig       out;
-  CFPostSettings set;
   PetscBool      figures = PETSC_TRUE;
+  PetscErrorCode ierr;
   char           file[PETSC_MAX_PATH_LEN], dir[PETSC_MAX_PATH_LEN];
 
   PetscFunctionBeginUser;
@@ -115,18 +131,9 @@ static PetscErrorCode Post(int argc, char **argv)
   PetscCall(PetscOptionsGetBool(NULL, NULL, "-figures", &figures, NULL));
   PetscCall(RunPaths(argv[1], file, dir));
   PetscCall(CFRunDataLoad(PETSC_COMM_WORLD, file, argc, argv, &run));
-
-  /* where to write: never the run's own directory unless asked, and never by the run's own
-     output.overwrite */
-  out = run.cfg;
-  if (!Given(argc, argv, "-output_dir")) PetscCall(PetscSNPrintf(out.output_dir, sizeof(out.output_dir), "%s/post", dir));
-  if (!Given(argc, argv, "-output_overwrite")) out.output_overwrite = PETSC_FALSE;
-  PetscCall(CFOutputDirPrepare(PETSC_COMM_WORLD, &out));
-
-  PetscCall(PetscPrintf(PETSC_COMM_WORLD, "crustforge-post: %s (%" PetscInt_FMT " x %" PetscInt_FMT " cells, %s)\n", file, run.nx, run.nz, run.cfg.melting_model));
-  PetscCall(CFPostSettingsFromConfig(&run.cfg, &set));
-  PetscCall(CFPostRun(PETSC_COMM_WORLD, &run, &set, out.output_dir, figures));
+  ierr = PostLoaded(argc, argv, file, dir, figures, &run);
   PetscCall(CFRunDataDestroy(&run));
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }
 

@@ -140,12 +140,19 @@ static PetscErrorCode PathsOnRoot(const CFRunData *run, const CFPostSettings *se
   PetscFunctionBeginUser;
   PetscCall(CFFlowCreate(&run->cfg, &flow));
   for (PetscInt p = 0; p < paths->npaths; p++) {
-    Track    tr = {0, 0, NULL, NULL, NULL};
-    PetscInt n;
+    Track          tr = {0, 0, NULL, NULL, NULL};
+    PetscInt       n;
+    PetscErrorCode ierr = Follow(run, flow, set->path_start_x[p], &tr);
 
-    PetscCall(Follow(run, flow, set->path_start_x[p], &tr));
     n = paths->npoints[p] = tr.n;
-    PetscCall(PathAllocate(paths, p));
+    if (!ierr) ierr = PathAllocate(paths, p);
+    if (ierr) {
+      PetscCall(PetscFree(tr.x));
+      PetscCall(PetscFree(tr.z));
+      PetscCall(PetscFree(tr.t));
+      PetscCall(CFFlowDestroy(&flow));
+      PetscCall(ierr);
+    }
     for (PetscInt k = 0; k < n; k++) {
       paths->x[p][k]    = tr.x[k];
       paths->z[p][k]    = tr.z[k];

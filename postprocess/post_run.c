@@ -30,7 +30,7 @@ static void SummaryText(const CFRunData *run, const CFPostSettings *set, const C
   if (!isnan(s->melt_onset_depth) && s->melt_onset_depth >= run->nz * run->dz) snprintf(onset, sizeof(onset), "at or below the domain bottom, %.2f km", (double)CFMToKm(s->melt_onset_depth));
   snprintf(none, sizeof(none), "none (the %g C isotherm does not reach the axis column)", (double)CFKelvinToCelsius(set->melt_lens_isotherm));
   Depth(lens, sizeof(lens), s->melt_lens_depth, none);
-#define ADD(...) n += (size_t)snprintf(buf + n, n < len ? len - n : 0, __VA_ARGS__)
+#define ADD(...) n += (size_t)snprintf(buf + PetscMin(n, len - 1), n < len ? len - n : 0, __VA_ARGS__)
   ADD("post-processing (extraction: %s)\n", extraction);
   ADD("  crustal thickness      %.4f km from the delivered melt, %.4f km from the far-side depletion flux (all melt)\n", (double)CFMToKm(s->crustal_thickness), (double)CFMToKm(s->crustal_thickness_side_flux));
   ADD("  delivered melt flux    %.6g kg/m/s per metre of ridge, half domain\n", (double)s->melt_flux);
@@ -67,24 +67,34 @@ static PetscErrorCode Figures(MPI_Comm comm, const CFRunData *run, const CFProfi
   PetscFunctionReturn(0);
 }
 
+static PetscErrorCode WriteAll(MPI_Comm comm, const CFRunData *run, const CFPostSettings *set, const char dir[], PetscBool figures, const CFSummary *sum, const CFProfiles *prof, const CFPTPaths *paths)
+{
+  char text[4096];
+
+  PetscFunctionBeginUser;
+  PetscCall(CFPostWriteSummaryCSV(comm, dir, run, set, sum));
+  PetscCall(CFPostWriteProfilesCSV(comm, dir, prof));
+  PetscCall(CFPostWritePathsCSV(comm, dir, paths));
+  SummaryText(run, set, sum, dir, text, sizeof(text));
+  PetscCall(PetscPrintf(comm, "%s", text));
+  if (figures) PetscCall(Figures(comm, run, prof, paths, dir));
+  PetscFunctionReturn(0);
+}
+
 PetscErrorCode CFPostRun(MPI_Comm comm, const CFRunData *run, const CFPostSettings *set, const char dir[], PetscBool figures)
 {
-  CFSummary  sum;
-  CFProfiles prof;
-  CFPTPaths  paths;
-  char       text[4096];
+  CFSummary      sum;
+  CFProfiles     prof;
+  CFPTPaths      paths;
+  PetscErrorCode ierr;
 
   PetscFunctionBeginUser;
   PetscCall(CFPostSummary(comm, run, set, &sum));
   PetscCall(CFPostProfiles(comm, run, set, &prof));
-  PetscCall(CFPostPTPaths(comm, run, set, &paths));
-  PetscCall(CFPostWriteSummaryCSV(comm, dir, run, set, &sum));
-  PetscCall(CFPostWriteProfilesCSV(comm, dir, &prof));
-  PetscCall(CFPostWritePathsCSV(comm, dir, &paths));
-  SummaryText(run, set, &sum, dir, text, sizeof(text));
-  PetscCall(PetscPrintf(comm, "%s", text));
-  if (figures) PetscCall(Figures(comm, run, &prof, &paths, dir));
+  ierr = CFPostPTPaths(comm, run, set, &paths);
+  if (!ierr) ierr = WriteAll(comm, run, set, dir, figures, &sum, &prof, &paths);
   PetscCall(CFPostPTPathsDestroy(&paths));
   PetscCall(CFPostProfilesDestroy(&prof));
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }

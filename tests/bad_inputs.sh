@@ -17,7 +17,7 @@ set -u
 : "${CF_TEST_TMP:?set CF_TEST_TMP to a scratch directory}"
 
 # Every run is one process: skip Open MPI's daemon and network set-up, which cost about half a
-# second a run here (common practice, no source).
+# second a run on the build machine (measured).
 export OMPI_MCA_ess_singleton_isolated=${OMPI_MCA_ess_singleton_isolated:-1}
 export OMPI_MCA_pml=${OMPI_MCA_pml:-ob1} OMPI_MCA_btl=${OMPI_MCA_btl:-self}
 
@@ -32,6 +32,14 @@ ncase=0
 
 # Lines in a file, counting a last line without a newline.
 nlines() { awk 'END { print NR }' "$1"; }
+
+# in_session NAME CMD...: run CMD with its own Open MPI session directory, since runs in parallel
+# race to create and remove a shared one.
+in_session() {
+  local dir=$tmp/mpi/$1
+  shift
+  mkdir -p "$dir" && OMPI_MCA_orte_tmpdir_base=$dir "$@"
+}
 
 # expect_bad NAME TEXT OUTDIR CMD...: CMD must exit 2 with one stderr line naming TEXT and must
 # not create OUTDIR.
@@ -58,14 +66,6 @@ expect_ok() {
   [ "$rc" -eq 0 ] || why+=("exit status $rc, expected 0")
   [ -d "$out" ] || why+=("$out was not created")
   report "$name" "$*" "${why[@]}"
-}
-
-# in_session NAME CMD...: run CMD with its own Open MPI session directory, since runs in parallel
-# race to create and remove a shared one.
-in_session() {
-  local dir=$tmp/mpi/$1
-  shift
-  mkdir -p "$dir" && OMPI_MCA_orte_tmpdir_base=$dir "$@"
 }
 
 # report NAME COMMAND [PROBLEM...]: record the case's result for the summary.
@@ -213,8 +213,10 @@ unknown_command_check() {
 spawn help_check
 spawn version_check
 spawn unknown_command_check
-spawn expect_bad cmd_sweep "sweep: not available yet" "$tmp/none" "$CRUSTFORGE" sweep x
-spawn expect_bad cmd_resume "resume: not available yet" "$tmp/none" "$CRUSTFORGE" resume x
+# Until a command exists it says "not available yet"; once it does, a missing file is named.
+# (A TEXT of several lines matches any one of them: grep -F takes each line as a pattern.)
+spawn expect_bad cmd_sweep $'sweep: not available yet\nno-such-sweep.yaml' "$tmp/none" "$CRUSTFORGE" sweep "$tmp/no-such-sweep.yaml"
+spawn expect_bad cmd_resume $'resume: not available yet\nno-such-checkpoint.h5' "$tmp/none" "$CRUSTFORGE" resume "$tmp/no-such-checkpoint.h5"
 wait
 
 # The refused directory keeps exactly what it held.

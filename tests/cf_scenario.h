@@ -10,6 +10,15 @@
 #include <crustforge/steady.h>
 #include <crustforge/units.h>
 
+/* A PETSc call inside a Check test: fail the test, naming the call, on any error code. */
+#ifndef CK_PETSC
+#define CK_PETSC(call) \
+  do { \
+    PetscErrorCode ierr_ = (call); \
+    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
+  } while (0)
+#endif
+
 /* The derived fields, as src/config/config.c sets them: plate speed, adiabatic gradient (unless
    set), whole numbers of cells and the actual cell size. */
 static inline void CFScenarioFinish(CFConfig *cfg)
@@ -56,26 +65,38 @@ static inline PetscErrorCode CFScenarioSolve(CFSteady s, CFSolveReport *report)
   PetscFunctionReturn(0);
 }
 
-/* Temperature (K) of every cell on rank 0 of the solver's communicator, natural order
-   T[j * nx + i] (j down, i outward); an empty vector on the other ranks.  VecDestroy after use. */
-static inline PetscErrorCode CFScenarioGatherTemperature(CFSteady s, Vec *Tzero)
+/* A dof-1 field of the solver's scalar DM on rank 0 of its communicator, natural order
+   f[j * nx + i] (j down, i outward); an empty vector on the other ranks.  VecDestroy after use. */
+static inline PetscErrorCode CFScenarioGather(CFSteady s, Vec field, Vec *zero)
 {
   DM         da1;
-  Vec        T, Tn;
+  Vec        natural;
   VecScatter scatter;
+
+  PetscFunctionBeginUser;
+  PetscCall(CFSteadyGetScalarDM(s, &da1));
+  PetscCall(DMDACreateNaturalVector(da1, &natural));
+  PetscCall(DMDAGlobalToNaturalBegin(da1, field, INSERT_VALUES, natural));
+  PetscCall(DMDAGlobalToNaturalEnd(da1, field, INSERT_VALUES, natural));
+  PetscCall(VecScatterCreateToZero(natural, &scatter, zero));
+  PetscCall(VecScatterBegin(scatter, natural, *zero, INSERT_VALUES, SCATTER_FORWARD));
+  PetscCall(VecScatterEnd(scatter, natural, *zero, INSERT_VALUES, SCATTER_FORWARD));
+  PetscCall(VecScatterDestroy(&scatter));
+  PetscCall(VecDestroy(&natural));
+  PetscFunctionReturn(0);
+}
+
+/* Temperature (K) of every cell on rank 0, as CFScenarioGather. */
+static inline PetscErrorCode CFScenarioGatherTemperature(CFSteady s, Vec *Tzero)
+{
+  DM  da1;
+  Vec T;
 
   PetscFunctionBeginUser;
   PetscCall(CFSteadyGetScalarDM(s, &da1));
   PetscCall(DMCreateGlobalVector(da1, &T));
   PetscCall(CFSteadyGetFields(s, T, NULL, NULL, NULL, NULL));
-  PetscCall(DMDACreateNaturalVector(da1, &Tn));
-  PetscCall(DMDAGlobalToNaturalBegin(da1, T, INSERT_VALUES, Tn));
-  PetscCall(DMDAGlobalToNaturalEnd(da1, T, INSERT_VALUES, Tn));
-  PetscCall(VecScatterCreateToZero(Tn, &scatter, Tzero));
-  PetscCall(VecScatterBegin(scatter, Tn, *Tzero, INSERT_VALUES, SCATTER_FORWARD));
-  PetscCall(VecScatterEnd(scatter, Tn, *Tzero, INSERT_VALUES, SCATTER_FORWARD));
-  PetscCall(VecScatterDestroy(&scatter));
-  PetscCall(VecDestroy(&Tn));
+  PetscCall(CFScenarioGather(s, T, Tzero));
   PetscCall(VecDestroy(&T));
   PetscFunctionReturn(0);
 }

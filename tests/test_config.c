@@ -5,7 +5,6 @@
 #include <string.h>
 #include <unistd.h>
 #include <crustforge/config.h>
-#include <crustforge/units.h>
 #include "cf_test.h"
 
 /* A PETSc call inside a Check test body (which returns void, so PetscCall cannot be used). */
@@ -53,7 +52,7 @@ static PetscErrorCode LoadText(const char *text, int nextra, const char *extra[]
   int   argc = 0;
 
   PetscFunctionBeginUser;
-  PetscCheck(nextra <= 13, PETSC_COMM_SELF, PETSC_ERR_ARG_OUTOFRANGE, "too many arguments");
+  PetscCheck(nextra <= 12, PETSC_COMM_SELF, PETSC_ERR_ARG_OUTOFRANGE, "too many arguments");
   PetscCall(WriteScenario(text));
   argv[argc++] = (char *)"test_config";
   argv[argc++] = (char *)"run";
@@ -144,7 +143,7 @@ START_TEST(test_defaults)
   CK_PETSC(CFConfigSetFromOptions(PETSC_COMM_WORLD, &cfg));
   cf_assert_close(cfg.full_spreading_rate_mm_yr, 60.0, 1e-15); /* intermediate ridge: common practice, no source */
   cf_assert_close(cfg.potential_temperature, 1350.0 + 273.15, 1e-15); /* Herzberg, Condie & Korenaga 2010, EPSL 292 */
-  cf_assert_near(cfg.water_ppm, 0.0, 0.0);                         /* dry by default: project contract */
+  cf_assert_near(cfg.water_ppm, 0.0, 0.0);                         /* dry by default: project default, no published source */
   cf_assert_close(cfg.mantle_density, 3300.0, 1e-15);              /* Wangen 2010; Turcotte & Schubert */
   cf_assert_close(cfg.heat_capacity, 1000.0, 1e-15);               /* Katz, Spiegelman & Langmuir 2003, Table 2 */
   cf_assert_close(cfg.conductivity, 3.3, 1e-15);                   /* Wangen 2010 (via kappa, below) */
@@ -156,9 +155,9 @@ START_TEST(test_defaults)
   cf_assert_close(cfg.water_density, 1030.0, 1e-15);               /* seawater: common practice, no source */
   cf_assert_close(cfg.surface_temperature, 273.15, 1e-15);         /* 0 C seafloor: common practice, no source */
   cf_assert_close(cfg.gravity, 9.81, 1e-15);                       /* standard value */
-  cf_assert_close(cfg.width, 400.0e3, 1e-15);                      /* 400 km: DESIGN.md section 2 default */
-  cf_assert_close(cfg.depth, 200.0e3, 1e-15);                      /* 200 km: DESIGN.md section 2 default */
-  cf_assert_close(cfg.spacing, 1.0e3, 1e-15);                      /* 1 km: project contract (inputs/default.yaml) */
+  cf_assert_close(cfg.width, 400.0e3, 1e-15);                      /* project default (DESIGN.md section 2), no published source */
+  cf_assert_close(cfg.depth, 200.0e3, 1e-15);                      /* project default (DESIGN.md section 2), no published source */
+  cf_assert_close(cfg.spacing, 1.0e3, 1e-15);                      /* project default (inputs/default.yaml), no published source */
   cf_assert_close(cfg.nusselt, 8.0, 1e-15);                        /* Phipps Morgan & Chen 1993, from memory */
   cf_assert_close(cfg.hydrothermal_temperature_cutoff, 600.0 + 273.15, 1e-15); /* same, from memory */
   cf_assert_close(cfg.hydrothermal_depth_cutoff, 6.0e3, 1e-15);    /* same, from memory */

@@ -3,22 +3,17 @@
    expected values are not published numbers: they are the same problem solved in the same run
    on a communicator holding rank 0 alone. */
 #include <math.h>
+#include <unistd.h>
 #include <crustforge/steady.h>
 #include <crustforge/units.h>
 #include "cf_test.h"
 #include "cf_scenario.h"
 
-#define CK_PETSC(call) \
-  do { \
-    PetscErrorCode ierr_ = (call); \
-    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
-  } while (0)
-
-/* Scalar results compared: crustal thickness two ways, k dT/dz at the surface at three plate
-   ages (the background conductivity times the gradient, CFScenarioSurfaceHeatFlow) and the
-   temperature of three cells. */
+/* Scalar results compared: crustal thickness two ways, the surface heat flow at three plate ages
+   as the solver's own top-face flux (effective conductivity of the top cell, hydrothermal cooling
+   included, times (T0 - Ts) / (dz / 2)) and the temperature of three cells. */
 enum { H_MELTING, H_SIDE, Q_1MYR, Q_2MYR, Q_5MYR, T_AXIS_50KM, T_100KM_20KM, T_300KM_100KM, NRESULTS };
-static const char *result_names[NRESULTS] = {"crust from melting (m)", "crust from side flux (m)", "k dT/dz at 1 Myr (W/m2)", "k dT/dz at 2 Myr (W/m2)", "k dT/dz at 5 Myr (W/m2)", "T axis 50 km (K)", "T 100 km, 20 km (K)", "T 300 km, 100 km (K)"};
+static const char *result_names[NRESULTS] = {"crust from melting (m)", "crust from side flux (m)", "heat flow at 1 Myr (W/m2)", "heat flow at 2 Myr (W/m2)", "heat flow at 5 Myr (W/m2)", "T axis 50 km (K)", "T 100 km, 20 km (K)", "T 300 km, 100 km (K)"};
 
 /* A default-like case (invented ridge segment): every default (katz2003, latent heat, adiabat,
    hydrothermal cooling, 60 mm/yr, Tp 1350 C, 400 x 200 km) on a coarse 8 km grid. */
@@ -32,12 +27,19 @@ static void DefaultLikeConfig(CFConfig *cfg)
 static PetscInt Column(const CFConfig *cfg, PetscReal x) { return PetscMin(cfg->nx - 1, (PetscInt)PetscFloorReal(x / cfg->dx)); }
 static PetscInt Row(const CFConfig *cfg, PetscReal z) { return PetscMin(cfg->nz - 1, (PetscInt)PetscFloorReal(z / cfg->dz)); }
 
-/* Solve on comm, to a tolerance well below the agreement asked for; results on every rank. */
+/* The solver's conductive flux through the surface face of column i (W m-2). */
+static PetscReal TopFaceHeatFlow(const CFConfig *cfg, const PetscScalar *T, const PetscScalar *k, PetscInt i) { return PetscRealPart(k[i]) * (PetscRealPart(T[i]) - cfg->surface_temperature) / (0.5 * cfg->dz); }
+
+/* Solve on comm, to a tolerance well below the agreement asked for; results on every rank.
+   The coloured Jacobian is factored directly (-steady_jacobian coloring): the answer depends
+   only on the residual, and the default GMRES path needs about 20 parallel triangular solves
+   per Newton step, which on 4 ranks sharing 2 busy cores took 30 s instead of 1 s (measured). */
 static void SolveOn(MPI_Comm comm, const CFConfig *cfg, PetscReal res[NRESULTS], CFSolveReport *rep)
 {
-  const char *const opts[] = {"-snes_rtol", "1e-13", "-snes_atol", "1e-10", "-ksp_rtol", "1e-12", NULL};
+  const char *const opts[] = {"-steady_jacobian", "coloring", "-snes_rtol", "1e-13", "-snes_atol", "1e-10", NULL};
   CFSteady          s      = NULL;
-  Vec               T;
+  DM                da1;
+  Vec               k, T, kzero;
   PetscMPIInt       rank;
 
   for (const char *const *o = opts; o[0]; o += 2) CK_PETSC(PetscOptionsSetValue(NULL, o[0], o[1]));
@@ -46,22 +48,45 @@ static void SolveOn(MPI_Comm comm, const CFConfig *cfg, PetscReal res[NRESULTS],
   CK_PETSC(CFScenarioSolve(s, rep));
   CK_PETSC(CFSteadyCrustalThickness(s, &res[H_MELTING], &res[H_SIDE]));
   CK_PETSC(CFScenarioGatherTemperature(s, &T));
+  CK_PETSC(CFSteadyGetScalarDM(s, &da1));
+  CK_PETSC(DMCreateGlobalVector(da1, &k));
+  CK_PETSC(CFSteadyGetFields(s, NULL, NULL, NULL, NULL, k));
+  CK_PETSC(CFScenarioGather(s, k, &kzero));
   CK_PETSC(MPI_Comm_rank(comm, &rank));
   if (!rank) {
-    const PetscScalar *t;
+    const PetscScalar *t, *kk;
     const PetscReal    U0 = cfg->half_rate;
     CK_PETSC(VecGetArrayRead(T, &t));
-    res[Q_1MYR]        = CFScenarioSurfaceHeatFlow(cfg, t, Column(cfg, U0 * CFMyrToS(1.0)));
-    res[Q_2MYR]        = CFScenarioSurfaceHeatFlow(cfg, t, Column(cfg, U0 * CFMyrToS(2.0)));
-    res[Q_5MYR]        = CFScenarioSurfaceHeatFlow(cfg, t, Column(cfg, U0 * CFMyrToS(5.0)));
+    CK_PETSC(VecGetArrayRead(kzero, &kk));
+    res[Q_1MYR]        = TopFaceHeatFlow(cfg, t, kk, Column(cfg, U0 * CFMyrToS(1.0)));
+    res[Q_2MYR]        = TopFaceHeatFlow(cfg, t, kk, Column(cfg, U0 * CFMyrToS(2.0)));
+    res[Q_5MYR]        = TopFaceHeatFlow(cfg, t, kk, Column(cfg, U0 * CFMyrToS(5.0)));
     res[T_AXIS_50KM]   = PetscRealPart(t[Row(cfg, 50.0e3) * cfg->nx]);
     res[T_100KM_20KM]  = PetscRealPart(t[Row(cfg, 20.0e3) * cfg->nx + Column(cfg, 100.0e3)]);
     res[T_300KM_100KM] = PetscRealPart(t[Row(cfg, 100.0e3) * cfg->nx + Column(cfg, 300.0e3)]);
+    CK_PETSC(VecRestoreArrayRead(kzero, &kk));
     CK_PETSC(VecRestoreArrayRead(T, &t));
   }
   CK_PETSC(MPI_Bcast(res, NRESULTS, MPIU_REAL, 0, comm));
+  CK_PETSC(VecDestroy(&kzero));
+  CK_PETSC(VecDestroy(&k));
   CK_PETSC(VecDestroy(&T));
   CK_PETSC(CFSteadyDestroy(&s));
+}
+
+/* Broadcast from rank 0, waiting without spinning: while rank 0 solves alone, the other ranks
+   leave it the cores (they may outnumber them). */
+static void BroadcastPolitely(PetscReal *buf, int n, MPI_Comm comm)
+{
+  MPI_Request req;
+  int         done = 0;
+
+  CK_PETSC(MPI_Ibcast(buf, n, MPIU_REAL, 0, comm, &req));
+  for (;;) {
+    CK_PETSC(MPI_Test(&req, &done, MPI_STATUS_IGNORE));
+    if (done) break;
+    usleep(1000);
+  }
 }
 
 /* 1, 2 or 4 ranks against rank 0 alone: every result within 1e-8 relative (DESIGN 5.7). */
@@ -81,14 +106,14 @@ START_TEST(test_thermal_ranks_agree)
     SolveOn(alone, &cfg, serial, &rep_serial);
     CK_PETSC(MPI_Comm_free(&alone));
   }
-  CK_PETSC(MPI_Bcast(serial, NRESULTS, MPIU_REAL, 0, PETSC_COMM_WORLD));
+  BroadcastPolitely(serial, NRESULTS, PETSC_COMM_WORLD);
   SolveOn(PETSC_COMM_WORLD, &cfg, parallel, &rep_parallel);
   for (int r = 0; r < NRESULTS; r++) {
     const PetscReal rel = PetscAbsReal(parallel[r] - serial[r]) / PetscAbsReal(serial[r]);
     worst               = PetscMax(worst, rel);
-    CK_PETSC(PetscPrintf(PETSC_COMM_WORLD, "thermal ranks: %-26s 1 rank %.12e  %d ranks %.12e  rel. diff %.2e\n", result_names[r], (double)serial[r], (int)size, (double)parallel[r], (double)rel));
+    CK_PETSC(PetscPrintf(PETSC_COMM_WORLD, "thermal ranks: %-26s 1 rank %.12e  %d rank(s) %.12e  rel. diff %.2e\n", result_names[r], (double)serial[r], (int)size, (double)parallel[r], (double)rel));
   }
-  CK_PETSC(PetscPrintf(PETSC_COMM_WORLD, "thermal ranks: %d x %d cells; Newton %d (1 rank), %d (%d ranks); %.2f s, %.2f s\n", (int)cfg.nx, (int)cfg.nz, (int)rep_serial.nonlinear_iterations, (int)rep_parallel.nonlinear_iterations, (int)size, (double)rep_serial.seconds, (double)rep_parallel.seconds));
+  CK_PETSC(PetscPrintf(PETSC_COMM_WORLD, "thermal ranks: %d x %d cells; Newton %d (1 rank), %d (%d rank(s)); %.2f s, %.2f s\n", (int)cfg.nx, (int)cfg.nz, (int)rep_serial.nonlinear_iterations, (int)rep_parallel.nonlinear_iterations, (int)size, (double)rep_serial.seconds, (double)rep_parallel.seconds));
   ck_assert_msg(serial[H_MELTING] > 1.0e3, "the default-like case made %g m of crust: the check would compare nothing", (double)serial[H_MELTING]);
   ck_assert_msg(worst <= 1e-8, "%d ranks differ from 1 rank by %g relative", (int)size, (double)worst);
 }

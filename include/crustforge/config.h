@@ -72,9 +72,24 @@ typedef struct {
   /* P-T paths (post-processor) */
   CFRealList pt_path_start_x; /* m, distances from the axis where parcels enter at the bottom */
 
+  /* transient runs (time.end_myr > 0); times in Myr as the user gives them */
+  PetscReal  time_end_myr;          /* 0: a steady run */
+  PetscReal  time_step_myr;         /* fixed step, or the first step when adaptive */
+  char       time_method[CF_NAME_LEN];
+  PetscBool  time_adaptive;
+  PetscReal  time_tolerance;        /* K, local error per step when adaptive */
+  char       time_start[CF_NAME_LEN];
+  PetscReal  time_lid_thickness;    /* m, cold lid of the start-up state */
+  PetscReal  time_max_steps;        /* stop (with a checkpoint) after this many steps; 0: none */
+  CFRealList history_full_spreading_rate;   /* pairs: Myr, mm/yr */
+  CFRealList history_potential_temperature; /* pairs: Myr, C */
+  PetscReal  checkpoint_every_steps, checkpoint_every_minutes, checkpoint_keep;
+  PetscReal  snapshot_every_steps;
+
   /* output */
   char      output_dir[PETSC_MAX_PATH_LEN];
   PetscBool output_overwrite;
+  PetscBool output_figures;
 } CFConfig;
 
 /* Insert SCENARIO (YAML) into the options database under the command line (argc/argv as given

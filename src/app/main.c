@@ -2,17 +2,20 @@
 #include <string.h>
 #include <crustforge/app.h>
 #include <crustforge/config.h>
+#include <crustforge/transient.h>
 #include "crustforge_version.h"
 
 static const char help[] = "crustforge: 2-D thermal and melt model of the mantle beneath a spreading ridge.\n"
                            "Usage: crustforge run SCENARIO.yaml [-section_key value ...] [PETSc options]\n"
+                           "       crustforge resume CHECKPOINT.h5 [-section_key value ...]\n"
                            "       crustforge --help | --version\n\n";
 
 static void Usage(FILE *fp)
 {
   fputs(help, fp);
   fputs("Commands:\n"
-        "  run SCENARIO.yaml      solve the steady state and write the run to output.dir\n"
+        "  run SCENARIO.yaml      solve the steady state (or, with time.end > 0, integrate in time)\n"
+        "                         and write the run to output.dir\n"
         "  resume CHECKPOINT.h5   continue a transient run from a checkpoint\n"
         "  sweep SWEEP.yaml       solve a grid of cases (rate x temperature x water)\n"
         "Any scenario key may be given on the command line as -section_key value; it overrides the\n"
@@ -36,7 +39,18 @@ static PetscErrorCode Run(int argc, char **argv)
   PetscFunctionBeginUser;
   PetscCheck(argc >= 3 && argv[2][0] != '-', PETSC_COMM_WORLD, PETSC_ERR_USER_INPUT, "run: no scenario file given (usage: crustforge run SCENARIO.yaml [-key value ...])");
   PetscCall(CFConfigLoad(PETSC_COMM_WORLD, argv[2], argc, argv, &cfg));
-  PetscCall(CFRunSteady(PETSC_COMM_WORLD, &cfg));
+  if (cfg.time_end_myr > 0) PetscCall(CFRunTransient(PETSC_COMM_WORLD, &cfg));
+  else PetscCall(CFRunSteady(PETSC_COMM_WORLD, &cfg));
+  PetscFunctionReturn(0);
+}
+
+/* Only time.end, time.max_steps, checkpoint.*, snapshots.*, output.* and post-processing keys may
+   be given: the checkpoint's fingerprint refuses anything that changes the physics. */
+static PetscErrorCode Resume(int argc, char **argv)
+{
+  PetscFunctionBeginUser;
+  PetscCheck(argc >= 3 && argv[2][0] != '-', PETSC_COMM_WORLD, PETSC_ERR_USER_INPUT, "resume: no checkpoint given (usage: crustforge resume CHECKPOINT.h5 [-key value ...])");
+  PetscCall(CFResumeTransient(PETSC_COMM_WORLD, argv[2], argc, argv));
   PetscFunctionReturn(0);
 }
 
@@ -69,6 +83,7 @@ int main(int argc, char **argv)
   if (!traceback) PetscPushErrorHandler(PetscReturnErrorHandler, NULL);
 
   if (!strcmp(cmd, "run")) ierr = Run(argc, argv);
+  else if (!strcmp(cmd, "resume")) ierr = Resume(argc, argv);
   else ierr = NotAvailable(cmd);
   status = CFExitStatus(ierr);
   if (ierr) {

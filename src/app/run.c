@@ -1,6 +1,7 @@
 /* The steady run: from a validated scenario to the files in output.dir. */
 #include <crustforge/app.h>
 #include <crustforge/output.h>
+#include <crustforge/postprocess.h>
 #include <crustforge/rundata.h>
 #include <crustforge/steady.h>
 #include <crustforge/units.h>
@@ -58,12 +59,13 @@ PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
   PetscReal     H, Hs;
   Vec           v[CF_NFIELDS];
   DM            da;
-  PetscLogStage stage_solve, stage_output;
+  PetscLogStage stage_solve, stage_output, stage_post;
   PetscInt      levels, coarse_its;
 
   PetscFunctionBeginUser;
   PetscCall(PetscLogStageRegister("Steady solve", &stage_solve));
   PetscCall(PetscLogStageRegister("Output", &stage_output));
+  PetscCall(PetscLogStageRegister("Post-processing", &stage_post));
   PetscCall(CFConfigView(cfg, viewer));
   PetscCall(CFOutputDirPrepare(comm, cfg));
 
@@ -81,8 +83,23 @@ PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
   PetscCall(CFSteadyGetScalarDM(s, &da));
   PetscCall(WriteRunFile(comm, cfg, da, v, &rep, H, Hs));
   PetscCall(PetscLogStagePop());
-  PetscCall(PetscPrintf(comm, "crustal thickness: %.4f km from melting rate, %.4f km from far-side depletion flux\n", (double)CFMToKm(H), (double)CFMToKm(Hs)));
   PetscCall(PetscPrintf(comm, "wrote %s/run.h5 and run.xdmf\n", cfg->output_dir));
+
+  PetscCall(PetscLogStagePush(stage_post));
+  {
+    CFRunData      rd;
+    CFPostSettings set;
+    PetscCall(CFRunDataCreate(comm, cfg, &rd));
+    for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(CFRunDataSetField(comm, &rd, (CFFieldId)f, da, v[f]));
+    rd.nonlinear_iterations = rep.nonlinear_iterations;
+    rd.linear_iterations    = rep.linear_iterations;
+    rd.residual_norm        = rep.final_residual;
+    rd.solve_seconds        = rep.seconds;
+    PetscCall(CFPostSettingsFromConfig(cfg, &set));
+    PetscCall(CFPostRun(comm, &rd, &set, cfg->output_dir, cfg->output_figures));
+    PetscCall(CFRunDataDestroy(&rd));
+  }
+  PetscCall(PetscLogStagePop());
 
   for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(VecDestroy(&v[f]));
   PetscCall(CFSteadyDestroy(&s));

@@ -59,8 +59,9 @@ PetscBool CFParseBool(const char *text, PetscBool *v)
 
 static void *Field(CFConfig *cfg, size_t offset) { return (char *)cfg + offset; }
 
-/* Split text at commas into reals (the user's unit).  Returns 0; 1 when an item is not a finite
-   number (its text in bad); 2 when there are more than CF_REAL_LIST_MAX items; 3 when empty. */
+/* Split text at commas into reals (the user's unit); blank text is the empty list (how an empty
+   list is written and read back).  Returns 0; 1 when an item is not a finite number (its text in
+   bad); 2 when there are more than CF_REAL_LIST_MAX items. */
 static int ParseRealList(const char *text, CFRealList *list, char bad[], size_t len)
 {
   list->n = 0;
@@ -70,7 +71,7 @@ static int ParseRealList(const char *text, CFRealList *list, char bad[], size_t 
     char        item[PETSC_MAX_PATH_LEN];
 
     snprintf(item, sizeof(item), "%.*s", (int)PetscMin(n, sizeof(item) - 1), p);
-    if (!comma && list->n == 0 && strspn(item, " \t") == strlen(item)) return 3;
+    if (!comma && list->n == 0 && strspn(item, " \t") == strlen(item)) return 0;
     if (list->n == CF_REAL_LIST_MAX) return 2;
     if (!CFParseReal(item, &list->v[list->n])) {
       snprintf(bad, len, "%s", item);
@@ -163,7 +164,6 @@ static PetscErrorCode ReadKey(PetscOptionItems *PetscOptionsObject, MPI_Comm com
     char       range[128], vs[32], bad[64];
     int        rc = ParseRealList(value, &list, bad, sizeof(bad));
     RangeText(k, range, sizeof(range));
-    PetscCheck(rc != 3, comm, PETSC_ERR_USER_INPUT, "%s.%s: empty list (expected 1 to %d numbers, each %s)", k->section, k->name, CF_REAL_LIST_MAX, range);
     PetscCheck(rc != 2, comm, PETSC_ERR_USER_INPUT, "%s.%s: more than %d numbers (at most %d allowed)", k->section, k->name, CF_REAL_LIST_MAX, CF_REAL_LIST_MAX);
     PetscCheck(rc != 1, comm, PETSC_ERR_USER_INPUT, "%s.%s: '%s' is not a finite number (expected a list of numbers, each %s)", k->section, k->name, bad, range);
     for (PetscInt m = 0; m < list.n; m++) {

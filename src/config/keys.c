@@ -59,10 +59,42 @@ const CFKey CFKeys[] = {
   {"melting", "entropy_of_fusion", "J/kg/K", CF_KEY_REAL, CF_CONV_NONE, "300", 0, 1000, PETSC_FALSE, PETSC_FALSE, F(entropy_of_fusion), NOSET,
    "entropy of fusion; latent heat is T dS; 0 turns latent heat off (Katz, Spiegelman & Langmuir 2003, Table 2)"},
 
+  /* Transient runs: a scenario with time.end > 0 is integrated in time (src/transient). */
+  {"time", "end", "Myr", CF_KEY_REAL, CF_CONV_NONE, "0", 0, 1000, PETSC_FALSE, PETSC_FALSE, F(time_end_myr), NOSET,
+   "model time at which a transient run ends; 0 makes the run steady"},
+  {"time", "step", "Myr", CF_KEY_REAL, CF_CONV_NONE, "0.05", 0, 100, PETSC_TRUE, PETSC_FALSE, F(time_step_myr), NOSET,
+   "time step (the first step when time.adaptive); the implicit methods are stable at any Courant number (common practice, no source)"},
+  {"time", "method", "", CF_KEY_STRING, CF_CONV_NONE, "sdirk2", 0, 0, PETSC_FALSE, PETSC_FALSE, F(time_method), NOSET,
+   "beuler (backward Euler, first order) or sdirk2 (two-stage L-stable second order, Alexander 1977, SIAM J. Numer. Anal. 14)"},
+  {"time", "adaptive", "", CF_KEY_BOOL, CF_CONV_NONE, "false", 0, 0, PETSC_FALSE, PETSC_FALSE, F(time_adaptive), NOSET,
+   "adapt the step to keep the embedded local error estimate below time.tolerance (sdirk2 only)"},
+  {"time", "tolerance", "K", CF_KEY_REAL, CF_CONV_NONE, "1", 0, 1000, PETSC_TRUE, PETSC_FALSE, F(time_tolerance), NOSET,
+   "adaptive steps: largest local error per step in temperature (depletion: the same fraction of the mantle-surface temperature difference) (common practice, no source)"},
+  {"time", "start", "", CF_KEY_STRING, CF_CONV_NONE, "steady", 0, 0, PETSC_FALSE, PETSC_FALSE, F(time_start), NOSET,
+   "initial state: steady (the steady solution of the parameters at time 0) or startup (a uniform adiabat under a thin cold lid: a ridge starting up)"},
+  {"time", "lid_thickness", "km", CF_KEY_REAL, CF_CONV_KM, "5", 0, 100, PETSC_TRUE, PETSC_FALSE, F(time_lid_thickness), NOSET,
+   "startup: thickness of the cold lid, T = Ts + (T_adiabat - Ts) erf(z / lid_thickness) (common practice, no source)"},
+  {"time", "max_steps", "1", CF_KEY_REAL, CF_CONV_NONE, "0", 0, 1e9, PETSC_FALSE, PETSC_FALSE, F(time_max_steps), NOSET,
+   "stop after this many steps from time 0, writing a checkpoint to resume from; 0: no limit"},
+  {"history", "full_spreading_rate", "Myr, mm/yr", CF_KEY_REAL_LIST, CF_CONV_NONE, "", 0, 1000, PETSC_FALSE, PETSC_FALSE, F(history_full_spreading_rate), NOSET,
+   "full spreading rate against time, pairs t0, v0, t1, v1, ... (Myr, mm/yr), linear between, constant beyond; empty: ridge.full_spreading_rate throughout"},
+  {"history", "potential_temperature", "Myr, C", CF_KEY_REAL_LIST, CF_CONV_NONE, "", 0, 1800, PETSC_FALSE, PETSC_FALSE, F(history_potential_temperature), NOSET,
+   "mantle potential temperature against time, pairs t0, T0, t1, T1, ... (Myr, C), linear between, constant beyond; empty: mantle.potential_temperature throughout"},
+  {"checkpoint", "every_steps", "1", CF_KEY_REAL, CF_CONV_NONE, "50", 0, 1e9, PETSC_FALSE, PETSC_FALSE, F(checkpoint_every_steps), NOSET,
+   "write a checkpoint every this many steps; 0: never by step count"},
+  {"checkpoint", "every_minutes", "min", CF_KEY_REAL, CF_CONV_NONE, "30", 0, 1e6, PETSC_FALSE, PETSC_FALSE, F(checkpoint_every_minutes), NOSET,
+   "write a checkpoint every this many minutes of wall time; 0: never by the clock"},
+  {"checkpoint", "keep", "1", CF_KEY_REAL, CF_CONV_NONE, "2", 1, 1000, PETSC_FALSE, PETSC_FALSE, F(checkpoint_keep), NOSET,
+   "how many of the latest checkpoints to keep"},
+  {"snapshots", "every_steps", "1", CF_KEY_REAL, CF_CONV_NONE, "0", 0, 1e9, PETSC_FALSE, PETSC_FALSE, F(snapshot_every_steps), NOSET,
+   "write the fields every this many steps into the HDF5 time series (snapshots/, with an XDMF time collection); 0: none"},
+
   {"output", "dir", "", CF_KEY_STRING, CF_CONV_NONE, "crustforge-output", 0, 0, PETSC_FALSE, PETSC_FALSE, F(output_dir), NOSET,
    "directory for the run's files; created, never overwritten unless output.overwrite"},
   {"output", "overwrite", "", CF_KEY_BOOL, CF_CONV_NONE, "false", 0, 0, PETSC_FALSE, PETSC_FALSE, F(output_overwrite), NOSET,
    "allow writing into an output.dir that already holds files"},
+  {"output", "figures", "", CF_KEY_BOOL, CF_CONV_NONE, "true", 0, 0, PETSC_FALSE, PETSC_FALSE, F(output_figures), NOSET,
+   "write the PNG figures of the run (needs PLplot's pngcairo driver; skipped with a note when it is missing)"},
 
   /* Post-processor settings (postprocess/): re-analysing a saved run with other values of these
      needs no new solve (crustforge-post). */
@@ -81,7 +113,7 @@ const CFKey CFKeys[] = {
    "seafloor depth at the axis, the reference of the isostatic depth profile (2500 m at zero age: Parsons & Sclater 1977, JGR 82)"},
 
   {"pt_paths", "start_x", "km", CF_KEY_REAL_LIST, CF_CONV_KM, "2,10,20,40,60", 0, 10000, PETSC_FALSE, PETSC_FALSE, F(pt_path_start_x), NOSET,
-   "distances from the axis where the parcels of the P-T paths enter at the bottom, a list of at most 16; values at or beyond grid.width are skipped (common practice, no source)"},
+   "distances from the axis where the parcels of the P-T paths enter at the bottom, a list of at most 16, empty for none; values at or beyond grid.width are skipped (common practice, no source)"},
 };
 
 const size_t CFKeyCount = sizeof(CFKeys) / sizeof(CFKeys[0]);
