@@ -172,7 +172,9 @@ static int Fail(PetscReal *F, PetscReal *dFdT)
 
 static PetscReal PressureGPa(PetscReal P) { return CFPaToGPa(PetscMax(P, 0.0)); } /* no tension: P < 0 is P = 0 */
 
-static PetscReal Solidus(const PetscReal p[], PetscReal P, PetscReal water_ppm)
+/* The hydrous solidus (the first melt takes X_bulk / D) or liquidus (the last solid gives all its
+   water to the melt): the dry curve lowered by the depression at F = 0 or F = 1. */
+static PetscReal HydrousCurve(const PetscReal p[], PetscReal P, PetscReal water_ppm, PetscBool liquidus)
 {
   const PetscReal P_GPa = PressureGPa(P);
   DryCurves       c;
@@ -181,20 +183,11 @@ static PetscReal Solidus(const PetscReal p[], PetscReal P, PetscReal water_ppm)
 
   (void)DryCurvesAt(p, P_GPa, &c);
   WaterAt(p, P_GPa, water_ppm, &w);
-  return CFCelsiusToKelvin(c.Ts - DepressionAt(&w, 0.0, &ddTdF)); /* the first melt takes X_bulk / D */
+  return CFCelsiusToKelvin((liquidus ? c.Tl : c.Ts) - DepressionAt(&w, liquidus ? 1.0 : 0.0, &ddTdF));
 }
 
-static PetscReal Liquidus(const PetscReal p[], PetscReal P, PetscReal water_ppm)
-{
-  const PetscReal P_GPa = PressureGPa(P);
-  DryCurves       c;
-  Water           w;
-  PetscReal       ddTdF;
-
-  (void)DryCurvesAt(p, P_GPa, &c);
-  WaterAt(p, P_GPa, water_ppm, &w);
-  return CFCelsiusToKelvin(c.Tl - DepressionAt(&w, 1.0, &ddTdF)); /* the last solid gives all its water to the melt */
-}
+static PetscReal Solidus(const PetscReal p[], PetscReal P, PetscReal water_ppm) { return HydrousCurve(p, P, water_ppm, PETSC_FALSE); }
+static PetscReal Liquidus(const PetscReal p[], PetscReal P, PetscReal water_ppm) { return HydrousCurve(p, P, water_ppm, PETSC_TRUE); }
 
 static int MeltFraction(const PetscReal p[], PetscReal P, PetscReal T, PetscReal water_ppm, PetscReal *F, PetscReal *dFdT)
 {

@@ -204,14 +204,12 @@ PetscErrorCode CFSteadySetInitialGuess(CFSteady s)
   PetscFunctionReturn(0);
 }
 
-PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *r)
+/* One Newton solve from the current solution; the report says how it ended, nothing is raised. */
+static PetscErrorCode SolveOnce(CFSteady s, CFSolveReport *r)
 {
-  Vec       Fv;
-  PetscReal t0;
+  Vec Fv;
 
   PetscFunctionBeginUser;
-  PetscCall(PetscMemzero(r, sizeof(*r)));
-  t0 = MPI_Wtime();
   PetscCall(VecDuplicate(s->X, &Fv));
   PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
   PetscCall(VecNorm(Fv, NORM_2, &r->initial_residual));
@@ -222,6 +220,50 @@ PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *r)
   PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
   PetscCall(VecNorm(Fv, NORM_2, &r->final_residual));
   PetscCall(VecDestroy(&Fv));
+  PetscFunctionReturn(0);
+}
+
+static void Accumulate(CFSolveReport *total, const CFSolveReport *r)
+{
+  total->nonlinear_iterations += r->nonlinear_iterations;
+  total->linear_iterations += r->linear_iterations;
+  total->final_residual = r->final_residual;
+  total->reason         = r->reason;
+}
+
+/* Newton from a poor guess can stall where hydrothermal cooling switches on.  The fallbacks, in
+   order: a fresh cooling-plate guess, then continuation in the Nusselt number from 1 (no
+   hydrothermal cooling) to its value in four steps, each solve starting from the last. */
+PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *r)
+{
+  PetscReal     t0 = MPI_Wtime();
+  PetscBool     fallback = PETSC_TRUE;
+  CFSolveReport once;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscMemzero(r, sizeof(*r)));
+  PetscCall(PetscOptionsGetBool(NULL, NULL, "-steady_fallback", &fallback, NULL));
+  PetscCall(SolveOnce(s, &once));
+  r->initial_residual = once.initial_residual;
+  Accumulate(r, &once);
+  if (r->reason <= 0 && fallback) {
+    PetscCall(PetscPrintf(s->comm, "steady solve: Newton stopped (%s); retrying from a cooling-plate guess\n", SNESConvergedReasons[r->reason]));
+    PetscCall(CFSteadySetInitialGuess(s));
+    PetscCall(SolveOnce(s, &once));
+    Accumulate(r, &once);
+  }
+  if (r->reason <= 0 && fallback && s->cfg.nusselt > 1.0) {
+    const PetscReal nu = s->cfg.nusselt;
+    PetscCall(PetscPrintf(s->comm, "steady solve: Newton stopped (%s); continuation in the hydrothermal Nusselt number\n", SNESConvergedReasons[r->reason]));
+    PetscCall(CFSteadySetInitialGuess(s));
+    for (PetscInt k = 0; k <= 4; k++) {
+      s->cfg.nusselt = 1.0 + (nu - 1.0) * k / 4.0;
+      PetscCall(SolveOnce(s, &once));
+      Accumulate(r, &once);
+      if (once.reason <= 0) break;
+    }
+    s->cfg.nusselt = nu;
+  }
   r->seconds = MPI_Wtime() - t0;
   PetscCheck(r->reason > 0, s->comm, PETSC_ERR_NOT_CONVERGED, "steady solve did not converge: %s after %" PetscInt_FMT " Newton iterations, residual %g K (from %g K)", SNESConvergedReasons[r->reason], r->nonlinear_iterations, (double)r->final_residual, (double)r->initial_residual);
   PetscFunctionReturn(0);

@@ -1,0 +1,36 @@
+#!/bin/sh
+# Benchmark of the steady solve on the default scenario: wall time, Newton and linear
+# iterations, peak memory, time per cell and per log stage, at several spacings, on 1 and 2 MPI
+# ranks and with 1 and 2 OpenMP threads for the melting model.  Prints figures; asserts nothing.
+#   sh bench/steady.sh [BUILD_DIR] [SPACINGS_KM]      e.g. sh bench/steady.sh build "2 1 0.5 0.25"
+set -e
+BUILD=${1:-build}
+SPACINGS=${2:-"2 1 0.5"}
+CF=$BUILD/src/crustforge
+SCEN=$(dirname "$0")/../inputs/default.yaml
+TMP=$(mktemp -d)
+trap 'rm -rf "$TMP"' EXIT
+export OMPI_ALLOW_RUN_AS_ROOT=1 OMPI_ALLOW_RUN_AS_ROOT_CONFIRM=1 OMPI_MCA_rmaps_base_oversubscribe=1
+
+run() { # label ranks threads spacing
+  label=$1 np=$2 nt=$3 h=$4
+  out=$TMP/$label
+  log=$TMP/$label.log
+  if [ "$np" = 1 ]; then
+    OMP_NUM_THREADS=$nt /usr/bin/time -v "$CF" run "$SCEN" -grid_spacing "$h" -output_dir "$out" -output_figures false -log_view >"$log" 2>"$log.time"
+  else
+    OMP_NUM_THREADS=$nt /usr/bin/time -v mpiexec -n "$np" --bind-to none "$CF" run "$SCEN" -grid_spacing "$h" -output_dir "$out" -output_figures false -log_view >"$log" 2>"$log.time"
+  fi
+  wall=$(grep "Elapsed (wall clock)" "$log.time" | awk '{print $NF}')
+  rss=$(grep "Maximum resident" "$log.time" | awk '{print $NF}')
+  its=$(grep "^steady solve:" "$log" | sed 's/steady solve: \([0-9]*\) Newton iterations, \([0-9]*\) linear.*/\1 \2/')
+  cells=$(awk -v h="$h" 'BEGIN{printf "%d", (400/h)*(200/h)}')
+  stages=$(awk '/Summary of Stages/{f=1;next} f&&/^ *[0-9]+:/{printf "%s=%ss ", $2 (NF>13?" "$3:""), $(NF>13?4:3)} /Event Stage/{f=0}' "$log" | head -c 300)
+  printf "%-14s h=%-5s cells=%-8s ranks=%s threads=%s wall=%-8s newton/linear=%-9s peakRSS=%s kB (%.0f B/cell) %s\n" \
+    "$label" "$h" "$cells" "$np" "$nt" "$wall" "$(echo $its | tr ' ' /)" "$rss" "$(awk -v r="$rss" -v c="$cells" 'BEGIN{print r*1024/c}')" "$stages"
+}
+
+echo "crustforge steady benchmark, $(nproc) cores, $(date -u +%Y-%m-%dT%H:%MZ)"
+for h in $SPACINGS; do run "serial" 1 1 "$h"; done
+run "2 ranks" 2 1 1
+run "2 threads" 1 2 1
