@@ -36,6 +36,36 @@ void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCe
   }
 }
 
+/* A NaN or Inf in the state or the residual stops the solve at once, naming the first such cell
+   (on the lowest rank that has one) and the field, instead of surfacing iterations later as a
+   diverged Newton step.  Collective, like the residual evaluation itself: one integer reduction. */
+static PetscErrorCode CheckFinite(CFSteady s, const DMDALocalInfo *info, CFCellState **x, CFCellState **f)
+{
+  char        msg[256] = "";
+  PetscMPIInt rank, size, mine, first;
+
+  PetscFunctionBeginUser;
+  /* The fields first: a bad value spreads into its neighbours' residuals through the stencil. */
+  for (int pass = 0; pass < 2 && !msg[0]; pass++)
+  for (PetscInt j = info->ys; j < info->ys + info->ym && !msg[0]; j++)
+    for (PetscInt i = info->xs; i < info->xs + info->xm && !msg[0]; i++) {
+      const char *what = NULL;
+      PetscReal   v    = 0;
+      if (pass == 0 && !isfinite(x[j][i].T)) what = "temperature", v = x[j][i].T;
+      else if (pass == 0 && !isfinite(x[j][i].F)) what = "depletion", v = x[j][i].F;
+      else if (pass == 1 && !isfinite(f[j][i].T)) what = "residual of the temperature equation", v = f[j][i].T;
+      else if (pass == 1 && !isfinite(f[j][i].F)) what = "residual of the depletion equation", v = f[j][i].F;
+      if (what) snprintf(msg, sizeof(msg), "steady solve: %s is %s at cell (i, j) = (%d, %d), x = %g km, z = %g km", what, isnan(v) ? "NaN" : (v > 0 ? "+Inf" : "-Inf"), (int)i, (int)j, (double)CFMToKm((i + 0.5) * s->rc.dx), (double)CFMToKm((j + 0.5) * s->rc.dz));
+    }
+  PetscCallMPI(MPI_Comm_rank(s->comm, &rank));
+  PetscCallMPI(MPI_Comm_size(s->comm, &size));
+  mine = msg[0] ? rank : size;
+  PetscCallMPI(MPI_Allreduce(&mine, &first, 1, MPI_INT, MPI_MIN, s->comm));
+  if (first == size) PetscFunctionReturn(0);
+  PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, first, s->comm));
+  SETERRQ(s->comm, PETSC_ERR_FP, "%s", msg);
+}
+
 static PetscErrorCode FormFunctionLocal(DMDALocalInfo *info, CFCellState **x, CFCellState **f, void *ptr)
 {
   CFSteady s = (CFSteady)ptr;
@@ -50,6 +80,7 @@ static PetscErrorCode FormFunctionLocal(DMDALocalInfo *info, CFCellState **x, CF
       f[j][i].T = CFEnergyResidualCell(&s->rc, info, (const CFCellState *const *)x, s->kcell, i, j, GV);
       f[j][i].F = (x[j][i].F - PetscMax(s->work_F[n], F_up)) * s->rc.depletion_scale;
     }
+  PetscCall(CheckFinite(s, info, x, f));
   PetscCall(PetscLogFlops(200.0 * info->xm * info->ym));
   PetscFunctionReturn(0);
 }
@@ -126,8 +157,21 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
   }
   PetscCall(SNESGetKSP(s->snes, &ksp));
   PetscCall(KSPGetPC(ksp, &pc));
-  PetscCall(PCSetType(pc, PCLU));
-  PetscCall(PCFactorSetMatSolverType(pc, MATSOLVERMUMPS));
+  {
+    PetscMPIInt size;
+    PetscBool   has;
+    PetscCallMPI(MPI_Comm_size(comm, &size));
+    if (size == 1 || s->use_coloring) {
+      PetscCall(PCSetType(pc, PCLU));
+      PetscCall(PCFactorSetMatSolverType(pc, MATSOLVERMUMPS));
+    } else {
+      /* in parallel, overlapping subdomains with a local LU each: about as few GMRES iterations
+         as the global LU here, without its slow distributed triangular solves */
+      PetscCall(PCSetType(pc, PCASM));
+      PetscCall(PetscOptionsHasName(NULL, NULL, "-sub_pc_type", &has));
+      if (!has) PetscCall(PetscOptionsSetValue(NULL, "-sub_pc_type", "lu"));
+    }
+  }
   if (s->use_coloring) PetscCall(KSPSetType(ksp, KSPPREONLY));
   else {
     PetscCall(DMCreateMatrix(s->da, &s->A));
