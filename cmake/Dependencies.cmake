@@ -15,6 +15,7 @@ endmacro()
 crustforge_require_pkg(PETSC "PETSc>=3.18" petsc-dev)
 crustforge_require_pkg(HDF5 hdf5-openmpi libhdf5-openmpi-dev)
 crustforge_require_pkg(CHECK check check)
+crustforge_require_pkg(YAML yaml-0.1 libyaml-dev) # the scenario pre-scan (src/config/scan.c)
 crustforge_require_pkg(PLPLOT plplot "libplplot-dev plplot-driver-cairo")
 
 find_package(MPI COMPONENTS C QUIET)

@@ -62,16 +62,18 @@ typedef struct {
   const CFSummary      *sum;
 } SummaryCtx;
 
-static void SummaryBody(FILE *fp, const void *ptr)
+typedef struct {
+  const char *name;
+  PetscReal   value;
+} SummaryColumn;
+
+#define CF_SUMMARY_NCOLUMNS 19
+
+/* The one list of summary.csv's columns, for the header and the rows alike. */
+static void SummaryColumns(const CFRunData *run, const CFPostSettings *e, const CFSummary *m, SummaryColumn col[CF_SUMMARY_NCOLUMNS])
 {
-  const SummaryCtx     *s = (const SummaryCtx *)ptr;
-  const CFConfig       *c = &s->run->cfg;
-  const CFSummary      *m = s->sum;
-  const CFPostSettings *e = s->set;
-  const struct {
-    const char *name;
-    PetscReal   value;
-  } col[] = {
+  const CFConfig     *c = &run->cfg;
+  const SummaryColumn all[CF_SUMMARY_NCOLUMNS] = {
     {"full_spreading_rate_mm_yr", c->full_spreading_rate_mm_yr},
     {"potential_temperature_C", CFKelvinToCelsius(c->potential_temperature)},
     {"water_ppm", c->water_ppm},
@@ -82,8 +84,8 @@ static void SummaryBody(FILE *fp, const void *ptr)
     {"mean_melt_fraction", m->mean_melt_fraction},
     {"mean_melting_pressure_GPa", CFPaToGPa(m->mean_melting_pressure)},
     {"melt_lens_depth_km", CFMToKm(m->melt_lens_depth)},
-    {"nonlinear_iterations", s->run->nonlinear_iterations >= 0 ? (PetscReal)s->run->nonlinear_iterations : NAN},
-    {"solve_seconds", s->run->solve_seconds},
+    {"nonlinear_iterations", run->nonlinear_iterations >= 0 ? (PetscReal)run->nonlinear_iterations : NAN},
+    {"solve_seconds", run->solve_seconds},
     {"regime_mean_melt_fraction", m->regime_mean_melt_fraction},
     {"melt_flux_kg_m_s", m->melt_flux},
     {"melting_region_width_km", CFMToKm(m->melting_region_width)},
@@ -92,10 +94,34 @@ static void SummaryBody(FILE *fp, const void *ptr)
     {"min_depletion", e->min_depletion},
     {"lid_temperature_C", e->lid_temperature > 0.0 ? CFKelvinToCelsius(e->lid_temperature) : 0.0},
   };
-  const size_t n = sizeof(col) / sizeof(col[0]);
+  memcpy(col, all, sizeof(all));
+}
 
-  for (size_t k = 0; k < n; k++) fprintf(fp, "%s%s", col[k].name, k + 1 < n ? "," : "\n");
-  for (size_t k = 0; k < n; k++) Real(fp, col[k].value, k + 1 < n ? "," : "\n");
+void CFPostSummaryCSVHeader(FILE *fp, const char end[])
+{
+  static const CFRunData      run;
+  static const CFPostSettings set;
+  static const CFSummary      sum;
+  SummaryColumn               col[CF_SUMMARY_NCOLUMNS];
+
+  SummaryColumns(&run, &set, &sum, col);
+  for (size_t k = 0; k < CF_SUMMARY_NCOLUMNS; k++) fprintf(fp, "%s%s", col[k].name, k + 1 < CF_SUMMARY_NCOLUMNS ? "," : end);
+}
+
+void CFPostSummaryCSVRow(FILE *fp, const CFRunData *run, const CFPostSettings *set, const CFSummary *sum, const char end[])
+{
+  SummaryColumn col[CF_SUMMARY_NCOLUMNS];
+
+  SummaryColumns(run, set, sum, col);
+  for (size_t k = 0; k < CF_SUMMARY_NCOLUMNS; k++) Real(fp, col[k].value, k + 1 < CF_SUMMARY_NCOLUMNS ? "," : end);
+}
+
+static void SummaryBody(FILE *fp, const void *ptr)
+{
+  const SummaryCtx *s = (const SummaryCtx *)ptr;
+
+  CFPostSummaryCSVHeader(fp, "\n");
+  CFPostSummaryCSVRow(fp, s->run, s->set, s->sum, "\n");
 }
 
 PetscErrorCode CFPostWriteSummaryCSV(MPI_Comm comm, const char dir[], const CFRunData *run, const CFPostSettings *set, const CFSummary *sum)

@@ -20,6 +20,8 @@ set -u
 # second a run on the build machine (measured).
 export OMPI_MCA_ess_singleton_isolated=${OMPI_MCA_ess_singleton_isolated:-1}
 export OMPI_MCA_pml=${OMPI_MCA_pml:-ob1} OMPI_MCA_btl=${OMPI_MCA_btl:-self}
+# Under the sanitizers, LeakSanitizer's table of suppressions used is not the program's output.
+export LSAN_OPTIONS=${LSAN_OPTIONS:+$LSAN_OPTIONS:}print_suppressions=0
 
 corpus=$CF_SOURCE_DIR/tests/bad_inputs
 default=$CF_SOURCE_DIR/inputs/default.yaml
@@ -146,6 +148,26 @@ spawn expect_bad out_dir_is_a_file "output.dir" "$tmp/never" \
 spawn expect_ok ok_default_tiny "$tmp/ok-tiny/nested" "$CRUSTFORGE" run "$default" "${tiny[@]}" -output_dir "$tmp/ok-tiny/nested"
 mkdir -p "$tmp/full2" && echo kept >"$tmp/full2/earlier-run.h5"
 spawn expect_ok ok_overwrite "$tmp/full2" "$CRUSTFORGE" run "$tmp/small.yaml" -output_dir "$tmp/full2" -output_overwrite true
+
+# --- Validate only: values AT a range limit are accepted (no solve, nothing written) ------------
+# Every limit of every key is checked in-process by test_limits; these go through the program.
+expect_check_ok() {
+  local name=$1 out=$2 rc why=()
+  shift 2
+  in_session "$name" "$@" >"$tmp/$name.stdout" 2>"$tmp/$name.stderr" </dev/null
+  rc=$?
+  [ "$rc" -eq 0 ] || why+=("exit status $rc, expected 0")
+  grep -q '^check: scenario .* is valid' "$tmp/$name.stdout" || why+=("no 'check: ... is valid' line")
+  [ ! -e "$out" ] || why+=("$out was created")
+  report "$name" "$*" "${why[@]}"
+}
+spawn expect_check_ok check_at_upper_limits "$tmp/out-check-hi" "$CRUSTFORGE" check "$default" -output_dir "$tmp/out-check-hi" \
+  -mantle_potential_temperature 1800 -mantle_water 5000 -ridge_full_spreading_rate 300 -surface_temperature 50 -hydrothermal_nusselt 100 -mantle_heat_capacity 2000
+spawn expect_check_ok check_at_lower_limits "$tmp/out-check-lo" "$CRUSTFORGE" check "$default" -output_dir "$tmp/out-check-lo" \
+  -mantle_potential_temperature 1000 -mantle_water 0 -surface_temperature -10 -hydrothermal_nusselt 1 -mantle_conductivity 0.5 -checkpoint_keep 1
+spawn expect_bad check_past_upper_limit "mantle.water: 5000.01 ppm is outside the allowed range" "$tmp/out-check-past" \
+  "$CRUSTFORGE" check "$default" -mantle_water 5000.01 -output_dir "$tmp/out-check-past"
+spawn expect_bad check_no_file "check: no scenario file given" "$tmp/none" "$CRUSTFORGE" check
 
 # --- Commands other than run -------------------------------------------------------------------
 help_check() {

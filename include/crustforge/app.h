@@ -4,6 +4,8 @@
 #define CRUSTFORGE_APP_H
 
 #include <crustforge/config.h>
+#include <crustforge/postprocess.h>
+#include <crustforge/steady.h>
 
 /* Exit statuses of every crustforge program. */
 enum {
@@ -23,8 +25,22 @@ PETSC_EXTERN void CFReportError(const char prog[], PetscErrorCode ierr);
 /* Create cfg->output_dir (and parents).  Refuses a directory that already holds files unless
    output.overwrite is set, and a path that is not a directory. Collective. */
 PETSC_EXTERN PetscErrorCode CFOutputDirPrepare(MPI_Comm comm, const CFConfig *cfg);
+/* The lock: CFOutputDirPrepare takes output.dir/.lock (refusing a directory another live run
+   holds; a killed run's lock is taken over); CFOutputDirRelease drops it (rank 0 of comm), and
+   whatever is still held is dropped at exit.  The signal variant only unlinks (stop.c). */
+PETSC_EXTERN PetscErrorCode CFOutputDirRelease(MPI_Comm comm, const CFConfig *cfg);
+PETSC_EXTERN void           CFOutputDirUnlockAllFromSignal(void);
+/* SIGTERM/SIGINT outside a transient run: a one-line message, the lock dropped, then the
+   signal's default action (stop.c). */
+PETSC_EXTERN PetscErrorCode CFStopHandlersInstall(void);
 
+/* After a converged solve of s: the summary into sum (may be NULL) and, when write is true, the
+   run file, tables and figures into the scenario's output.dir (the steady run's output; a sweep
+   asks only for the summary of most cases).  Collective. */
+PETSC_EXTERN PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport *rep, PetscBool write, CFSummary *sum);
 /* The whole steady run: solve, write, post-process, summarise. */
 PETSC_EXTERN PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg);
+/* crustforge sweep SWEEP.yaml: a grid of steady cases over MPI groups (src/app/sweep_run.c). */
+PETSC_EXTERN PetscErrorCode CFRunSweep(MPI_Comm comm, const char file[], int argc, char **argv);
 
 #endif

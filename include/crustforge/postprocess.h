@@ -65,4 +65,10 @@ PETSC_EXTERN PetscErrorCode CFPostPTPathsDestroy(CFPTPaths *paths);
    names and renamed. Collective. */
 PETSC_EXTERN PetscErrorCode CFPostRun(MPI_Comm comm, const CFRunData *run, const CFPostSettings *set, const char dir[], PetscBool figures);
 
+/* summary.csv's columns for tables of many runs (a sweep): the header names and one row of
+   values (15 significant digits, "nan"), each followed by end ("\n", or "," before more columns).
+   For a run without a summary (a failed solve) pass a CFSummary of NaNs. Any process. */
+PETSC_EXTERN void CFPostSummaryCSVHeader(FILE *fp, const char end[]);
+PETSC_EXTERN void CFPostSummaryCSVRow(FILE *fp, const CFRunData *run, const CFPostSettings *set, const CFSummary *sum, const char end[]);
+
 #endif

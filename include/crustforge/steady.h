@@ -38,6 +38,10 @@ PETSC_EXTERN PetscErrorCode CFSteadySetInitialGuess(CFSteady s);
    spacing -steady_coarsest_spacing, km, default 8) and interpolate.  Reports the levels used and
    the Newton iterations spent on them. */
 PETSC_EXTERN PetscErrorCode CFSteadySequenceInitialGuess(CFSteady s, PetscInt *levels, PetscInt *coarse_iterations);
+/* Continuation (sweeps): start from the solution X of another CFSteady on a grid of the same
+   size and layout (a neighbouring case): its temperature, with the depletion that temperature
+   implies under s's own parameters (the exact upstream sweep). */
+PETSC_EXTERN PetscErrorCode CFSteadyCopySolution(CFSteady s, Vec X);
 /* Solve from the current solution.  Non-convergence is PETSC_ERR_NOT_CONVERGED naming PETSc's
    reason; the report is filled either way. */
 PETSC_EXTERN PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *report);

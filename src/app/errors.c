@@ -11,6 +11,7 @@ int CFExitStatus(PetscErrorCode ierr)
   case PETSC_ERR_FILE_UNEXPECTED:
   case PETSC_ERR_FILE_WRITE: return CF_EXIT_INPUT;
   case PETSC_ERR_NOT_CONVERGED: return CF_EXIT_NOT_CONVERGED;
+  case PETSC_ERR_FP: return CF_EXIT_NOT_CONVERGED; /* NaN or Inf in a residual or field: the solve failed */
   case PETSC_ERR_SIG: return CF_EXIT_INTERRUPTED; /* a transient run stopped after its checkpoint */
   default: return CF_EXIT_INTERNAL;
   }

@@ -1,4 +1,5 @@
 /* crustforge: steady and transient thermal and melt structure beneath a spreading ridge. */
+#include <signal.h>
 #include <string.h>
 #include <crustforge/app.h>
 #include <crustforge/config.h>
@@ -8,6 +9,8 @@
 static const char help[] = "crustforge: 2-D thermal and melt model of the mantle beneath a spreading ridge.\n"
                            "Usage: crustforge run SCENARIO.yaml [-section_key value ...] [PETSc options]\n"
                            "       crustforge resume CHECKPOINT.h5 [-section_key value ...]\n"
+                           "       crustforge sweep SWEEP.yaml [-section_key value ...]\n"
+                           "       crustforge check SCENARIO.yaml [-section_key value ...]\n"
                            "       crustforge --help | --version\n\n";
 
 static void Usage(FILE *fp)
@@ -17,7 +20,11 @@ static void Usage(FILE *fp)
         "  run SCENARIO.yaml      solve the steady state (or, with time.end > 0, integrate in time)\n"
         "                         and write the run to output.dir\n"
         "  resume CHECKPOINT.h5   continue a transient run from a checkpoint\n"
-        "  sweep SWEEP.yaml       solve a grid of cases (rate x temperature x water)\n"
+        "  check SCENARIO.yaml    load and validate the scenario, print it, exit 0; no solve\n"
+        "  sweep SWEEP.yaml       solve a grid of cases (rate x temperature x water): a scenario plus\n"
+        "                         sweep: {section: {key: [a, b, ...] or {from, to, count | step}},\n"
+        "                         ranks_per_case, continuation, run_files}; writes sweep.csv and\n"
+        "                         figures to output.dir; a rerun resumes (see include/crustforge/sweep.h)\n"
         "Any scenario key may be given on the command line as -section_key value; it overrides the\n"
         "file.  PETSc's own options (-snes_*, -ksp_*, -pc_*, -log_view) work as usual.\n"
         "Exit status: 0 success, 2 bad input or refused request, 3 solver did not converge,\n"
@@ -41,6 +48,26 @@ static PetscErrorCode Run(int argc, char **argv)
   PetscCall(CFConfigLoad(PETSC_COMM_WORLD, argv[2], argc, argv, &cfg));
   if (cfg.time_end_myr > 0) PetscCall(CFRunTransient(PETSC_COMM_WORLD, &cfg));
   else PetscCall(CFRunSteady(PETSC_COMM_WORLD, &cfg));
+  PetscFunctionReturn(0);
+}
+
+static PetscErrorCode Check(int argc, char **argv)
+{
+  CFConfig cfg;
+
+  PetscFunctionBeginUser;
+  PetscCheck(argc >= 3 && argv[2][0] != '-', PETSC_COMM_WORLD, PETSC_ERR_USER_INPUT, "check: no scenario file given (usage: crustforge check SCENARIO.yaml [-key value ...])");
+  PetscCall(CFConfigLoad(PETSC_COMM_WORLD, argv[2], argc, argv, &cfg));
+  PetscCall(CFConfigView(&cfg, PETSC_VIEWER_STDOUT_WORLD));
+  PetscCall(PetscPrintf(PETSC_COMM_WORLD, "check: scenario %s is valid\n", argv[2]));
+  PetscFunctionReturn(0);
+}
+
+static PetscErrorCode Sweep(int argc, char **argv)
+{
+  PetscFunctionBeginUser;
+  PetscCheck(argc >= 3 && argv[2][0] != '-', PETSC_COMM_WORLD, PETSC_ERR_USER_INPUT, "sweep: no sweep file given (usage: crustforge sweep SWEEP.yaml [-key value ...])");
+  PetscCall(CFRunSweep(PETSC_COMM_WORLD, argv[2], argc, argv));
   PetscFunctionReturn(0);
 }
 
@@ -70,20 +97,26 @@ int main(int argc, char **argv)
     printf("crustforge %s (revision %s)\n", CRUSTFORGE_VERSION, CRUSTFORGE_REVISION);
     return CF_EXIT_OK;
   }
-  if (strcmp(cmd, "run") && strcmp(cmd, "resume") && strcmp(cmd, "sweep")) {
+  if (strcmp(cmd, "run") && strcmp(cmd, "resume") && strcmp(cmd, "sweep") && strcmp(cmd, "check")) {
     Usage(stderr);
     fprintf(stderr, "crustforge: %s%s%s\n", cmd[0] ? "unknown command '" : "no command given", cmd, cmd[0] ? "'" : "");
     return CF_EXIT_INPUT;
   }
 
+  /* A file-size limit (ulimit -f) then makes write() fail with EFBIG, reported, instead of
+     killing the run without a word. */
+  signal(SIGXFSZ, SIG_IGN);
   ierr = PetscInitialize(&argc, &argv, NULL, help);
   if (ierr) return CF_EXIT_INTERNAL;
+  if (CFStopHandlersInstall()) return CF_EXIT_INTERNAL; /* after PETSc's own */
   /* One line per error unless a developer asks for PETSc's traceback. */
   if (PetscOptionsGetBool(NULL, NULL, "-debug_traceback", &traceback, NULL)) traceback = PETSC_FALSE;
   if (!traceback) PetscPushErrorHandler(PetscReturnErrorHandler, NULL);
 
   if (!strcmp(cmd, "run")) ierr = Run(argc, argv);
   else if (!strcmp(cmd, "resume")) ierr = Resume(argc, argv);
+  else if (!strcmp(cmd, "sweep")) ierr = Sweep(argc, argv);
+  else if (!strcmp(cmd, "check")) ierr = Check(argc, argv);
   else ierr = NotAvailable(cmd);
   status = CFExitStatus(ierr);
   if (ierr) {

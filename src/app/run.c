@@ -51,22 +51,48 @@ static PetscErrorCode WriteRunFile(MPI_Comm comm, const CFConfig *cfg, DM da, Ve
   PetscFunctionReturn(0);
 }
 
+PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport *rep, PetscBool write, CFSummary *sum)
+{
+  const CFConfig *cfg = CFSteadyGetConfig(s);
+  Vec             v[CF_NFIELDS];
+  DM              da;
+  CFRunData       rd;
+  CFPostSettings  set;
+
+  PetscFunctionBeginUser;
+  PetscCall(ComputeFields(s, v));
+  PetscCall(CFSteadyGetScalarDM(s, &da));
+  if (write) {
+    PetscReal H, Hs;
+    PetscCall(CFSteadyCrustalThickness(s, &H, &Hs));
+    PetscCall(WriteRunFile(comm, cfg, da, v, rep, H, Hs));
+    PetscCall(PetscPrintf(comm, "wrote %s/run.h5 and run.xdmf\n", cfg->output_dir));
+  }
+  PetscCall(CFRunDataCreate(comm, cfg, &rd));
+  for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(CFRunDataSetField(comm, &rd, (CFFieldId)f, da, v[f]));
+  rd.nonlinear_iterations = rep->nonlinear_iterations;
+  rd.linear_iterations    = rep->linear_iterations;
+  rd.residual_norm        = rep->final_residual;
+  rd.solve_seconds        = rep->seconds;
+  PetscCall(CFPostSettingsFromConfig(cfg, &set));
+  if (sum) PetscCall(CFPostSummary(comm, &rd, &set, sum));
+  if (write) PetscCall(CFPostRun(comm, &rd, &set, cfg->output_dir, cfg->output_figures));
+  PetscCall(CFRunDataDestroy(&rd));
+  for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(VecDestroy(&v[f]));
+  PetscFunctionReturn(0);
+}
+
 PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
 {
-  PetscViewer   viewer = PETSC_VIEWER_STDOUT_(comm);
   CFSteady      s;
   CFSolveReport rep;
-  PetscReal     H, Hs;
-  Vec           v[CF_NFIELDS];
-  DM            da;
-  PetscLogStage stage_solve, stage_output, stage_post;
+  PetscLogStage stage_solve, stage_output;
   PetscInt      levels, coarse_its;
 
   PetscFunctionBeginUser;
   PetscCall(PetscLogStageRegister("Steady solve", &stage_solve));
-  PetscCall(PetscLogStageRegister("Output", &stage_output));
-  PetscCall(PetscLogStageRegister("Post-processing", &stage_post));
-  PetscCall(CFConfigView(cfg, viewer));
+  PetscCall(PetscLogStageRegister("Output and post-processing", &stage_output));
+  PetscCall(CFConfigView(cfg, PETSC_VIEWER_STDOUT_(comm)));
   PetscCall(CFOutputDirPrepare(comm, cfg));
 
   PetscCall(PetscLogStagePush(stage_solve));
@@ -76,32 +102,10 @@ PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
   PetscCall(CFSteadySolve(s, &rep));
   PetscCall(PetscLogStagePop());
   PetscCall(PetscPrintf(comm, "steady solve: %" PetscInt_FMT " Newton iterations, %" PetscInt_FMT " linear iterations, residual %.3e K -> %.3e K (%s), %.2f s\n", rep.nonlinear_iterations, rep.linear_iterations, (double)rep.initial_residual, (double)rep.final_residual, SNESConvergedReasons[rep.reason], (double)rep.seconds));
-  PetscCall(CFSteadyCrustalThickness(s, &H, &Hs));
 
   PetscCall(PetscLogStagePush(stage_output));
-  PetscCall(ComputeFields(s, v));
-  PetscCall(CFSteadyGetScalarDM(s, &da));
-  PetscCall(WriteRunFile(comm, cfg, da, v, &rep, H, Hs));
+  PetscCall(CFRunSteadyResults(comm, s, &rep, PETSC_TRUE, NULL));
   PetscCall(PetscLogStagePop());
-  PetscCall(PetscPrintf(comm, "wrote %s/run.h5 and run.xdmf\n", cfg->output_dir));
-
-  PetscCall(PetscLogStagePush(stage_post));
-  {
-    CFRunData      rd;
-    CFPostSettings set;
-    PetscCall(CFRunDataCreate(comm, cfg, &rd));
-    for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(CFRunDataSetField(comm, &rd, (CFFieldId)f, da, v[f]));
-    rd.nonlinear_iterations = rep.nonlinear_iterations;
-    rd.linear_iterations    = rep.linear_iterations;
-    rd.residual_norm        = rep.final_residual;
-    rd.solve_seconds        = rep.seconds;
-    PetscCall(CFPostSettingsFromConfig(cfg, &set));
-    PetscCall(CFPostRun(comm, &rd, &set, cfg->output_dir, cfg->output_figures));
-    PetscCall(CFRunDataDestroy(&rd));
-  }
-  PetscCall(PetscLogStagePop());
-
-  for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(VecDestroy(&v[f]));
   PetscCall(CFSteadyDestroy(&s));
   PetscFunctionReturn(0);
 }

@@ -115,7 +115,7 @@ static PetscErrorCode Integrate(CFTransient tr, const CFConfig *cfg, PetscBool r
   PetscCall(PetscPrintf(comm, "transient: %d steps (%d this run) to t = %.6g Myr in %.1f s; crustal thickness now %.4f km\n", (int)step, (int)(step - step0), (double)CFSToMyr(t), MPI_Wtime() - wall0, (double)CFMToKm(LastThickness(tr))));
   PetscCall(PetscPrintf(comm, "wrote %s/crust_vs_time.csv and crust_vs_distance.csv%s\n", cfg->output_dir, ckpath[0] ? "" : ""));
   if (ckpath[0]) PetscCall(PetscPrintf(comm, "last checkpoint: %s\n", ckpath));
-  PetscCheck(!signo, comm, PETSC_ERR_SIG, "interrupted by %s at step %d (t = %g Myr): checkpoint %s written; continue with: crustforge resume %s", signo == SIGINT ? "SIGINT" : "SIGTERM", (int)step, (double)CFSToMyr(t), ckpath, ckpath);
+  PetscCheck(!signo, comm, PETSC_ERR_SIG, "interrupted by %s at step %d (t = %.6g Myr): checkpoint %s written; continue with: crustforge resume %s", signo == SIGINT ? "SIGINT" : "SIGTERM", (int)step, (double)CFSToMyr(t), ckpath, ckpath);
   if (CFTransientFinished(tr)) {
     PetscCall(PetscSNPrintf(path, sizeof(path), "%s/run.h5", cfg->output_dir));
     PetscCall(CFTransientWriteRunFile(tr, path));
@@ -133,8 +133,9 @@ PetscErrorCode CFRunTransient(MPI_Comm comm, const CFConfig *cfg)
   PetscCall(CFTransientCreate(comm, cfg, &tr)); /* checks the time and history keys */
   PetscCall(CFOutputDirPrepare(comm, cfg));
   PetscCall(CFTransientSetInitialState(tr));
-  PetscCall(PetscPrintf(comm, "transient: %s start, method %s, %s steps of %g Myr, to %g Myr\n", cfg->time_start, cfg->time_method, cfg->time_adaptive ? "adaptive" : "fixed", (double)cfg->time_step_myr, (double)cfg->time_end_myr));
+  PetscCall(PetscPrintf(comm, "transient: %s start, method %s, %s steps of %.6g Myr, to %.6g Myr\n", cfg->time_start, cfg->time_method, cfg->time_adaptive ? "adaptive" : "fixed", (double)cfg->time_step_myr, (double)cfg->time_end_myr));
   PetscCall(Integrate(tr, cfg, PETSC_FALSE));
+  PetscCall(CFOutputDirRelease(comm, cfg));
   PetscCall(CFTransientDestroy(&tr));
   PetscFunctionReturn(0);
 }
@@ -151,7 +152,7 @@ PetscErrorCode CFResumeTransient(MPI_Comm comm, const char checkpoint[], int arg
   PetscCall(CFTransientCreate(comm, &cfg, &tr));
   PetscCall(CFTransientCheckpointLoad(tr, checkpoint));
   PetscCall(CFTransientGetTime(tr, &t, &step, NULL));
-  PetscCall(PetscPrintf(comm, "resuming %s at step %d, t = %.6g Myr, to %g Myr\n", checkpoint, (int)step, (double)CFSToMyr(t), (double)cfg.time_end_myr));
+  PetscCall(PetscPrintf(comm, "resuming %s at step %d, t = %.6g Myr, to %.6g Myr\n", checkpoint, (int)step, (double)CFSToMyr(t), (double)cfg.time_end_myr));
   PetscCall(Integrate(tr, &cfg, PETSC_TRUE));
   PetscCall(CFTransientDestroy(&tr));
   PetscFunctionReturn(0);

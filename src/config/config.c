@@ -10,6 +10,8 @@
 #include <crustforge/melting.h>
 #include <crustforge/units.h>
 #include "keys.h"
+#include "resources.h"
+#include "scan.h"
 
 PetscReal CFKeyToSI(const CFKey *key, PetscReal v)
 {
@@ -317,6 +319,7 @@ PetscErrorCode CFConfigSetFromOptions(MPI_Comm comm, CFConfig *cfg)
   }
   PetscCall(ReadMeltingParams(comm, mt, cfg));
   PetscCall(SetDerived(comm, cfg));
+  PetscCall(CFConfigCheckMemory(comm, cfg));
   PetscCall(CheckUnknownKeys(comm, cfg));
   PetscFunctionReturn(0);
 }
@@ -344,6 +347,15 @@ static PetscErrorCode CheckScenarioFile(MPI_Comm comm, const char path[])
   fclose(fp);
   PetscCheck(!nul, comm, PETSC_ERR_FILE_UNEXPECTED, "scenario file '%s' is binary, not YAML text", path);
   PetscCheck(nonblank, comm, PETSC_ERR_FILE_UNEXPECTED, "scenario file '%s' holds no keys", path);
+  { /* duplicated keys, aliases, over-long keys and values, syntax: see scan.c */
+    char msg[512];
+    int  rc;
+    fp = fopen(path, "rb");
+    PetscCheck(fp, comm, PETSC_ERR_FILE_OPEN, "scenario file '%s' cannot be read: %s", path, strerror(errno));
+    rc = CFScenarioScanFile(fp, msg, sizeof(msg));
+    fclose(fp);
+    PetscCheck(!rc, comm, PETSC_ERR_USER_INPUT, "scenario file '%s' is not a valid scenario: %s", path, msg);
+  }
   PetscFunctionReturn(0);
 }
 

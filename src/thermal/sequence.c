@@ -115,3 +115,18 @@ PetscErrorCode CFSteadySequenceInitialGuess(CFSteady s, PetscInt *levels_used, P
   }
   PetscFunctionReturn(0);
 }
+
+PetscErrorCode CFSteadyCopySolution(CFSteady s, Vec X)
+{
+  PetscInt n, m;
+
+  PetscFunctionBeginUser;
+  PetscCall(VecGetLocalSize(X, &n));
+  PetscCall(VecGetLocalSize(s->X, &m));
+  PetscCheck(n == m, PETSC_COMM_SELF, PETSC_ERR_ARG_SIZ, "continuation: the solution to start from has %" PetscInt_FMT " local values, this grid %" PetscInt_FMT, n, m);
+  PetscCall(VecCopy(X, s->X));
+  /* the depletion follows from the temperature for this case's melting parameters */
+  PetscCall(VecStrideSet(s->X, 1, 0.0));
+  PetscCall(CFDepletionSweep(s, s->X));
+  PetscFunctionReturn(0);
+}

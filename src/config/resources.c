@@ -1,0 +1,36 @@
+/* Refusing a grid the machine cannot hold, before anything is allocated: the steady solver's
+   measured peak memory per cell times the cells, against the physical memory of the nodes the
+   run spans. */
+#include <unistd.h>
+#include <crustforge/units.h>
+#include "resources.h"
+
+/* Peak resident memory of a whole steady run (solve, output, tables; figures off), one rank,
+   measured with /usr/bin/time -v on a 200 x 100 km grid: spacing 2 km (5 000 cells) 69 MB,
+   1 km (20 000 cells) 142 MB, 0.5 km (80 000 cells) 470 MB, i.e. about 45 MB to start plus
+   4.9 then 5.5 KB per added cell (the sparse LU's fill grows slowly with the grid).  The figure
+   taken is 6.5 KB per cell plus 50 MB (measured, rounded up). */
+#define CF_BYTES_PER_CELL 6500.0
+#define CF_BYTES_FIXED    50.0e6
+
+PetscErrorCode CFConfigCheckMemory(MPI_Comm comm, const CFConfig *cfg)
+{
+  MPI_Comm    node;
+  PetscMPIInt noderank;
+  double      cells = (double)cfg->nx * (double)cfg->nz, need, have = 0, mine = 0;
+  long        pages = sysconf(_SC_PHYS_PAGES), page = sysconf(_SC_PAGE_SIZE);
+  char        sp[32];
+
+  PetscFunctionBeginUser;
+  /* One leader per node adds that node's memory. */
+  PetscCallMPI(MPI_Comm_split_type(comm, MPI_COMM_TYPE_SHARED, 0, MPI_INFO_NULL, &node));
+  PetscCallMPI(MPI_Comm_rank(node, &noderank));
+  PetscCallMPI(MPI_Comm_free(&node));
+  if (!noderank && pages > 0 && page > 0) mine = (double)pages * (double)page;
+  PetscCallMPI(MPI_Allreduce(&mine, &have, 1, MPI_DOUBLE, MPI_SUM, comm));
+  if (have <= 0) PetscFunctionReturn(0); /* unknown: do not guess */
+  need = CF_BYTES_FIXED + CF_BYTES_PER_CELL * cells;
+  snprintf(sp, sizeof(sp), "%g", (double)CFMToKm(cfg->spacing));
+  PetscCheck(need <= have, comm, PETSC_ERR_USER_INPUT, "grid.spacing: %s km needs about %.4g GB (%.4g million cells), this machine has %.3g GB", sp, need / 1e9, cells / 1e6, have / 1e9);
+  PetscFunctionReturn(0);
+}
