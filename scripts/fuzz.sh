@@ -35,10 +35,10 @@ export ASAN_OPTIONS=${ASAN_OPTIONS:-detect_odr_violation=0:detect_leaks=1}
 # that libyaml parsed: suppressed here, see tests/fuzz/lsan.supp.
 export LSAN_OPTIONS=suppressions=$PWD/tests/fuzz/lsan.supp:fast_unwind_on_malloc=0
 rc=0
-nice "$dir/fuzz_config" -max_total_time="$secs" -max_len=8192 -timeout=10 -artifact_prefix="$dir/" \
+nice "$dir/fuzz_config" -max_total_time="$secs" -max_len=8192 -timeout=10 -print_final_stats=1 -artifact_prefix="$dir/" \
   -dict=tests/fuzz/scenario.dict "$dir/corpus_config" tests/fuzz/seeds_config tests/bad_inputs 2>"$dir/fuzz_config.log" || rc=1
 tail -n 3 "$dir/fuzz_config.log"
-nice "$dir/fuzz_reader" -max_total_time="$secs" -max_len=65536 -timeout=10 -artifact_prefix="$dir/" \
+nice "$dir/fuzz_reader" -max_total_time="$secs" -max_len=65536 -timeout=10 -print_final_stats=1 -artifact_prefix="$dir/" \
   "$dir/corpus_reader" tests/fuzz/seeds_reader 2>"$dir/fuzz_reader.log" || rc=1
 tail -n 3 "$dir/fuzz_reader.log"
 exit $rc
