@@ -3,7 +3,8 @@
 # As root on Debian or Ubuntu it runs apt-get; otherwise it prints the command to run.
 set -e
 PACKAGES="build-essential cmake pkg-config petsc-dev libhdf5-openmpi-dev check libyaml-dev
-libplplot-dev plplot-driver-cairo hdf5-tools python3-h5py python3-meshio python3-numpy"
+libplplot-dev plplot-driver-cairo hdf5-tools python3-h5py python3-meshio python3-numpy
+clang libclang-rt-14-dev valgrind"
 
 missing=""
 for p in $PACKAGES; do

@@ -8,5 +8,5 @@ cd "$(dirname "$0")/.."
 dir=${1:-build-asan}
 cmake -S . -B "$dir" -DCMAKE_BUILD_TYPE=Debug -DCRUSTFORGE_SANITIZE=ON >/dev/null
 cmake --build "$dir" -j"$(nproc)"
-# Sanitized runs are several times slower: allow each test three times its usual time.
+# Sanitized runs are several times slower than the usual build.
 ctest --test-dir "$dir" --output-on-failure -j"$(nproc)" --timeout 600

@@ -9,6 +9,7 @@
 
 #include <crustforge/rundata.h>
 #include <crustforge/postprocess.h>
+#include <crustforge/crust_series.h>
 
 #define CF_FIGURE_WIDTH_PX  1200
 #define CF_FIGURE_HEIGHT_PX 800
@@ -37,6 +38,9 @@ PETSC_EXTERN PetscErrorCode CFFigurePTPaths(const CFRunData *run, const CFPTPath
 PETSC_EXTERN PetscErrorCode CFFigureHeatFlow(const CFRunData *run, const CFProfiles *prof, const char dir[]);
 PETSC_EXTERN PetscErrorCode CFFigureSeafloorDepth(const CFRunData *run, const CFProfiles *prof, PetscReal ridge_depth, const char dir[]);
 /* All of the above into dir, the field figures with the default window. */
+/* crust_history.png: crustal thickness and spreading rate against time, and the crustal
+   thickness profile across the flank that the history leaves.  Rank 0 only. */
+PETSC_EXTERN PetscErrorCode CFFigureCrustHistory(const CFConfig *cfg, const CFCrustSeries *cs, const char dir[]);
 PETSC_EXTERN PetscErrorCode CFFiguresWriteAll(const CFRunData *run, const CFProfiles *prof, const CFPTPaths *paths, const char dir[]);
 
 /* ---- Reference curves drawn beside the model (SI: t in s, results in W m-2 and m) ---------- */

@@ -10,6 +10,7 @@
 #include <petscts.h>
 #include <crustforge/config.h>
 #include <crustforge/steady.h>
+#include <crustforge/crust_series.h>
 
 typedef struct _p_CFTransient *CFTransient;
 
@@ -33,6 +34,10 @@ PETSC_EXTERN PetscErrorCode CFTransientHistories(CFTransient tr, PetscReal t, Pe
 /* The crust record: per step, the end time (s), the step (s), the melt production (kg m-1 s-1,
    half domain, per unit ridge length) and the plate speed (m/s).  Arrays belong to tr. */
 PETSC_EXTERN PetscErrorCode CFTransientGetCrustRecord(CFTransient tr, PetscInt *n, const PetscReal **t, const PetscReal **dt, const PetscReal **melt, const PetscReal **half_rate);
+/* The crust record in the trade's units: against time, and where the plate has carried each
+   step's crust by the end of the record.  Free with CFCrustSeriesDestroy. */
+PETSC_EXTERN PetscErrorCode CFTransientCrustSeries(CFTransient tr, CFCrustSeries *cs);
+PETSC_EXTERN PetscErrorCode CFCrustSeriesDestroy(CFCrustSeries *cs);
 /* crust_vs_time.csv and crust_vs_distance.csv in dir (rank 0 writes). */
 PETSC_EXTERN PetscErrorCode CFTransientWriteCrustCSV(CFTransient tr, const char dir[]);
 

@@ -7,8 +7,28 @@
 #include <sys/stat.h>
 #include <crustforge/app.h>
 #include <crustforge/transient.h>
+#include <crustforge/figures.h>
 #include <crustforge/units.h>
 #include "../transient/transient_impl.h"
+
+/* crust_history.png on rank 0, when figures are wanted and the PNG driver is there. */
+static PetscErrorCode CrustFigure(CFTransient tr, const CFConfig *cfg)
+{
+  PetscMPIInt rank;
+  PetscBool   ok = PETSC_FALSE;
+
+  PetscFunctionBeginUser;
+  PetscCallMPI(MPI_Comm_rank(PETSC_COMM_WORLD, &rank));
+  if (rank || !cfg->output_figures) PetscFunctionReturn(0);
+  PetscCall(CFFiguresAvailable(&ok));
+  if (ok) {
+    CFCrustSeries cs;
+    PetscCall(CFTransientCrustSeries(tr, &cs));
+    if (cs.n > 0) PetscCall(CFFigureCrustHistory(cfg, &cs, cfg->output_dir));
+    PetscCall(CFCrustSeriesDestroy(&cs));
+  }
+  PetscFunctionReturn(0);
+}
 
 static PetscErrorCode MakeDir(MPI_Comm comm, const char path[])
 {
@@ -111,6 +131,7 @@ static PetscErrorCode Integrate(CFTransient tr, const CFConfig *cfg, PetscBool r
   PetscCall(ierr);
   if (limited && !written) PetscCall(Checkpoint(tr, cfg, ckdir, ckpath));
   PetscCall(CFTransientWriteCrustCSV(tr, cfg->output_dir));
+  PetscCall(CrustFigure(tr, cfg));
   PetscCall(CFTransientGetTime(tr, &t, &step, NULL));
   PetscCall(PetscPrintf(comm, "transient: %d steps (%d this run) to t = %.6g Myr in %.1f s; crustal thickness now %.4f km\n", (int)step, (int)(step - step0), (double)CFSToMyr(t), MPI_Wtime() - wall0, (double)CFMToKm(LastThickness(tr))));
   PetscCall(PetscPrintf(comm, "wrote %s/crust_vs_time.csv and crust_vs_distance.csv%s\n", cfg->output_dir, ckpath[0] ? "" : ""));

@@ -249,12 +249,9 @@ PetscErrorCode CFSteadySetInitialGuess(CFSteady s)
 }
 
 /* One Newton solve from the current solution; the report says how it ended, nothing is raised. */
-static PetscErrorCode SolveOnce(CFSteady s, CFSolveReport *r)
+static PetscErrorCode SolveOnceWith(CFSteady s, Vec Fv, CFSolveReport *r)
 {
-  Vec Fv;
-
   PetscFunctionBeginUser;
-  PetscCall(VecDuplicate(s->X, &Fv));
   PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
   PetscCall(VecNorm(Fv, NORM_2, &r->initial_residual));
   PetscCall(SNESSolve(s->snes, NULL, s->X));
@@ -263,7 +260,20 @@ static PetscErrorCode SolveOnce(CFSteady s, CFSolveReport *r)
   PetscCall(SNESGetLinearSolveIterations(s->snes, &r->linear_iterations));
   PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
   PetscCall(VecNorm(Fv, NORM_2, &r->final_residual));
+  PetscFunctionReturn(0);
+}
+
+/* The residual work vector is freed on the error path too (a NaN stops the solve, CheckFinite). */
+static PetscErrorCode SolveOnce(CFSteady s, CFSolveReport *r)
+{
+  Vec            Fv;
+  PetscErrorCode ierr;
+
+  PetscFunctionBeginUser;
+  PetscCall(VecDuplicate(s->X, &Fv));
+  ierr = SolveOnceWith(s, Fv, r);
   PetscCall(VecDestroy(&Fv));
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }
 

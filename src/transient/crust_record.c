@@ -65,35 +65,61 @@ static PetscErrorCode CloseCSV(MPI_Comm comm, FILE *fp, const char path[], const
   PetscFunctionReturn(0);
 }
 
+PetscErrorCode CFTransientCrustSeries(CFTransient tr, CFCrustSeries *cs)
+{
+  const CFCrustRecord *r     = &tr->rec;
+  const PetscReal      rho_c = tr->cfg.crust_density;
+  const PetscReal      t_now = r->n ? r->t[r->n - 1] : 0.0;
+
+  PetscFunctionBeginUser;
+  cs->n = r->n;
+  PetscCall(PetscMalloc4(r->n, &cs->time_myr, r->n, &cs->full_rate_mm_yr, r->n, &cs->accretion_km2_per_myr, r->n, &cs->thickness_km));
+  PetscCall(PetscMalloc3(r->n, &cs->distance_km, r->n, &cs->formed_at_myr, r->n, &cs->age_myr));
+  for (PetscInt k = 0; k < r->n; k++) {
+    /* accretion: crust area per unit ridge length and time on one flank; thickness = rate / U0 */
+    const PetscReal rate  = r->melt[k] / rho_c; /* m2/s */
+    const PetscReal t_mid = r->t[k] - 0.5 * r->dt[k];
+    cs->time_myr[k]              = CFSToMyr(r->t[k]);
+    cs->full_rate_mm_yr[k]       = 2.0 * CFMPerSToMmPerYr(r->U[k]);
+    cs->accretion_km2_per_myr[k] = rate * 1e-6 * CFMyrToS(1.0);
+    cs->thickness_km[k]          = CFMToKm(rate / r->U[k]);
+    /* where the plate has carried the crust made at t_mid by now */
+    cs->distance_km[k]   = CFMToKm(CFHistoryIntegral(&tr->rate, t_mid, t_now));
+    cs->formed_at_myr[k] = CFSToMyr(t_mid);
+    cs->age_myr[k]       = CFSToMyr(t_now - t_mid);
+  }
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFCrustSeriesDestroy(CFCrustSeries *cs)
+{
+  PetscFunctionBeginUser;
+  PetscCall(PetscFree4(cs->time_myr, cs->full_rate_mm_yr, cs->accretion_km2_per_myr, cs->thickness_km));
+  PetscCall(PetscFree3(cs->distance_km, cs->formed_at_myr, cs->age_myr));
+  PetscFunctionReturn(0);
+}
+
 PetscErrorCode CFTransientWriteCrustCSV(CFTransient tr, const char dir[])
 {
-  const CFCrustRecord *r = &tr->rec;
-  const PetscReal      rho_c = tr->cfg.crust_density;
-  PetscMPIInt          rank;
-  FILE                *fp;
-  char                 path[PETSC_MAX_PATH_LEN], tmp[PETSC_MAX_PATH_LEN];
-  PetscReal            t_now = r->n ? r->t[r->n - 1] : 0.0;
+  PetscMPIInt   rank;
+  FILE         *fp;
+  char          path[PETSC_MAX_PATH_LEN], tmp[PETSC_MAX_PATH_LEN];
+  CFCrustSeries cs;
 
   PetscFunctionBeginUser;
   PetscCallMPI(MPI_Comm_rank(tr->comm, &rank));
   if (rank) PetscFunctionReturn(0);
+  PetscCall(CFTransientCrustSeries(tr, &cs));
   PetscCall(OpenCSV(PETSC_COMM_SELF, dir, "crust_vs_time.csv", &fp, path, tmp));
-  /* accretion: crust area per unit ridge length and time on one flank; thickness = rate / U0 */
   fprintf(fp, "time_myr,full_spreading_rate_mm_yr,crustal_accretion_rate_km2_per_myr,crustal_thickness_km\n");
-  for (PetscInt k = 0; k < r->n; k++) {
-    const PetscReal rate = r->melt[k] / rho_c; /* m2/s */
-    fprintf(fp, "%.10g,%.10g,%.10g,%.10g\n", (double)CFSToMyr(r->t[k]), (double)(2.0 * CFMPerSToMmPerYr(r->U[k])), (double)(rate * 1e-6 * CFMyrToS(1.0)), (double)CFMToKm(rate / r->U[k]));
-  }
+  for (PetscInt k = 0; k < cs.n; k++) fprintf(fp, "%.10g,%.10g,%.10g,%.10g\n", (double)cs.time_myr[k], (double)cs.full_rate_mm_yr[k], (double)cs.accretion_km2_per_myr[k], (double)cs.thickness_km[k]);
   PetscCall(CloseCSV(PETSC_COMM_SELF, fp, path, tmp));
 
   PetscCall(OpenCSV(PETSC_COMM_SELF, dir, "crust_vs_distance.csv", &fp, path, tmp));
   /* the profile across the flank the history leaves, axis first */
   fprintf(fp, "distance_km,crustal_thickness_km,formed_at_myr,age_myr\n");
-  for (PetscInt k = r->n - 1; k >= 0; k--) {
-    const PetscReal t_mid = r->t[k] - 0.5 * r->dt[k];
-    const PetscReal x     = CFHistoryIntegral(&tr->rate, t_mid, t_now);
-    fprintf(fp, "%.10g,%.10g,%.10g,%.10g\n", (double)CFMToKm(x), (double)CFMToKm(r->melt[k] / (rho_c * r->U[k])), (double)CFSToMyr(t_mid), (double)CFSToMyr(t_now - t_mid));
-  }
+  for (PetscInt k = cs.n - 1; k >= 0; k--) fprintf(fp, "%.10g,%.10g,%.10g,%.10g\n", (double)cs.distance_km[k], (double)cs.thickness_km[k], (double)cs.formed_at_myr[k], (double)cs.age_myr[k]);
   PetscCall(CloseCSV(PETSC_COMM_SELF, fp, path, tmp));
+  PetscCall(CFCrustSeriesDestroy(&cs));
   PetscFunctionReturn(0);
 }
