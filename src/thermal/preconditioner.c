@@ -30,7 +30,7 @@ static void Add(Row *r, PetscInt i, PetscInt j, PetscInt c, PetscScalar v)
 static inline PetscReal Harmonic(PetscReal a, PetscReal b) { return 2.0 * a * b / (a + b); }
 
 /* Energy row of cell (i, j): d(residual)/d(T, F) of the neighbours, before scaling. */
-static void EnergyRow(const CFResidualCtx *rc, const DMDALocalInfo *info, const CFCellState *const *x, const PetscReal *kcell, PetscInt i, PetscInt j, Row *r)
+static void EnergyRow(const CFResidualCtx *rc, const DMDALocalInfo *info, const CFCellState *const *x, const PetscReal *kcell, PetscInt i, PetscInt j, PetscBool decoupled, Row *r)
 {
   const CFCornerPsi *c = &rc->corners;
   const PetscReal    rcp = rc->rho * rc->cp, dx = rc->dx, dz = rc->dz, kP = KCELL(info, kcell, i, j);
@@ -75,7 +75,7 @@ static void EnergyRow(const CFResidualCtx *rc, const DMDALocalInfo *info, const 
     Add(r, i, j + 1, 0, -a);
   } else Add(r, i, j, 0, 2.0 * kP * dx / dz);
   /* latent heat T dS Gamma V, Gamma V = rho (out_q F_P - in_q F_upstream) */
-  if (rc->entropy_of_fusion > 0.0) {
+  if (rc->entropy_of_fusion > 0.0 && !decoupled) {
     const PetscReal TdS = x[j][i].T * rc->entropy_of_fusion * rc->rho;
     PetscReal       out_q = 0.0;
     GV = CFDepletionMeltingRate(rc, x, i, j, &F_up);
@@ -90,7 +90,7 @@ static void EnergyRow(const CFResidualCtx *rc, const DMDALocalInfo *info, const 
 }
 
 /* Depletion row: F_P - max(F_eq(T_P), F_up(F of the upstream neighbours)). */
-static void DepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal Feq, PetscReal dFeq, Row *r)
+static void DepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal Feq, PetscReal dFeq, PetscBool decoupled, Row *r)
 {
   const CFCornerPsi *c = &rc->corners;
   const PetscReal    s = rc->depletion_scale;
@@ -104,7 +104,7 @@ static void DepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, P
   {
     const PetscBool eq = (PetscBool)(Feq >= F_up);
     in_q               = PetscMax(qL, 0.0) + PetscMax(-qR, 0.0) + PetscMax(qB, 0.0) + PetscMax(-qT, 0.0);
-    Add(r, i, j, 0, eq ? -s * dFeq : 0.0);
+    Add(r, i, j, 0, (eq && !decoupled) ? -s * dFeq : 0.0);
     if (in_q <= 0.0) return;
     if (i > 0) Add(r, i - 1, j, 1, (!eq && qL > 0.0) ? -s * qL / in_q : 0.0);
     if (i + 1 < rc->nx) Add(r, i + 1, j, 1, (!eq && qR < 0.0) ? s * qR / in_q : 0.0);
@@ -139,11 +139,11 @@ PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ptr)
       row.j = j;
       row.k = 0;
       row.c = 0;
-      EnergyRow(&s->rc, &info, (const CFCellState *const *)x, s->kcell, i, j, &r);
+      EnergyRow(&s->rc, &info, (const CFCellState *const *)x, s->kcell, i, j, s->decoupled, &r);
       PetscCall(MatSetValuesStencil(P, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
       r.n   = 0;
       row.c = 1;
-      DepletionRow(&s->rc, (const CFCellState *const *)x, i, j, s->work_F[n], s->work_dF[n], &r);
+      DepletionRow(&s->rc, (const CFCellState *const *)x, i, j, s->work_F[n], s->work_dF[n], s->decoupled, &r);
       PetscCall(MatSetValuesStencil(P, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
     }
   PetscCall(DMDAVecRestoreArrayRead(da, Xl, &x));
@@ -151,6 +151,6 @@ PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ptr)
   PetscCall(MatAssemblyBegin(P, MAT_FINAL_ASSEMBLY));
   PetscCall(MatAssemblyEnd(P, MAT_FINAL_ASSEMBLY));
   /* the operator: coloured finite differences of the full residual (the DM supplies the colouring) */
-  PetscCall(SNESComputeJacobianDefaultColor(snes, X, J, J, NULL));
+  if (J != P) PetscCall(SNESComputeJacobianDefaultColor(snes, X, J, J, NULL));
   PetscFunctionReturn(0);
 }

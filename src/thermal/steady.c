@@ -148,12 +148,13 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
   PetscCall(DMDASNESSetFunctionLocal(s->da, INSERT_VALUES, (DMDASNESFunction)FormFunctionLocal, s));
   PetscCall(SNESSetTolerances(s->snes, 1e-6, 1e-9, 0.0, 50, PETSC_DEFAULT));
   {
-    const char *const kinds[] = {"split", "coloring", "CFSteadyJacobian", "", NULL};
+    const char *const kinds[] = {"split", "coloring", "picard", "CFSteadyJacobian", "", NULL};
     PetscEnum         kind    = 0;
     PetscOptionsBegin(comm, "steady_", "Steady coupled solver", "crustforge");
-    PetscCall(PetscOptionsEnum("-jacobian", "split: coloured finite-difference Jacobian as operator, GMRES preconditioned by the LU of a first-order five-point approximation; coloring: the coloured Jacobian factored directly", NULL, kinds, kind, &kind, NULL));
+    PetscCall(PetscOptionsEnum("-jacobian", "split: coloured finite-difference Jacobian as operator, GMRES preconditioned by the LU of a first-order five-point approximation; coloring: the coloured Jacobian factored directly; picard: outer iterations (temperature with the melting rate frozen, then depletion with the temperature frozen), for comparison", NULL, kinds, kind, &kind, NULL));
     PetscOptionsEnd();
     s->use_coloring = (PetscBool)(kind == 1);
+    s->decoupled    = (PetscBool)(kind == 2);
   }
   PetscCall(SNESGetKSP(s->snes, &ksp));
   PetscCall(KSPGetPC(ksp, &pc));
@@ -173,7 +174,13 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
     }
   }
   if (s->use_coloring) PetscCall(KSPSetType(ksp, KSPPREONLY));
-  else {
+  else if (s->decoupled) {
+    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
+    PetscCall(DMCreateMatrix(s->da, &s->P));
+    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_FALSE));
+    PetscCall(SNESSetJacobian(s->snes, s->P, s->P, CFSteadyFormJacobian, s));
+    PetscCall(KSPSetType(ksp, KSPPREONLY));
+  } else {
     PetscCall(DMCreateMatrix(s->da, &s->A));
     PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
     PetscCall(DMCreateMatrix(s->da, &s->P));

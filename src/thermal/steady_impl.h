@@ -41,6 +41,7 @@ struct _p_CFSteady {
   Vec            X;
   Mat            A, P; /* Jacobian (coloured differences) and its first-order approximation */
   PetscBool      use_coloring;
+  PetscBool      decoupled; /* outer (Picard) iterations: no temperature-depletion coupling in the Jacobian */
   CFFlow         flow;
   CFMeltingModel melting;
   CFResidualCtx  rc;

@@ -2,12 +2,12 @@
 # Benchmark of the steady solve on the default scenario: wall time, Newton and linear
 # iterations, peak memory, time per cell and per log stage, at several spacings, on 1 and 2 MPI
 # ranks and with 1 and 2 OpenMP threads for the melting model.  Prints figures; asserts nothing.
-#   sh bench/steady.sh [BUILD_DIR] [SPACINGS_KM]      e.g. sh bench/steady.sh build "2 1 0.5 0.25"
+#   sh tests/bench/steady.sh [BUILD_DIR] [SPACINGS_KM]      e.g. sh tests/bench/steady.sh build "2 1 0.5 0.25"
 set -e
 BUILD=${1:-build}
 SPACINGS=${2:-"2 1 0.5"}
 CF=$BUILD/src/crustforge
-SCEN=$(dirname "$0")/../inputs/default.yaml
+SCEN=$(dirname "$0")/../../inputs/default.yaml
 TMP=$(mktemp -d)
 trap 'rm -rf "$TMP"' EXIT
 export OMPI_ALLOW_RUN_AS_ROOT=1 OMPI_ALLOW_RUN_AS_ROOT_CONFIRM=1 OMPI_MCA_rmaps_base_oversubscribe=1
@@ -25,7 +25,7 @@ run() { # label ranks threads spacing
   rss=$(grep "Maximum resident" "$log.time" | awk '{print $NF}')
   its=$(grep "^steady solve:" "$log" | sed 's/steady solve: \([0-9]*\) Newton iterations, \([0-9]*\) linear.*/\1 \2/')
   cells=$(awk -v h="$h" 'BEGIN{printf "%d", (400/h)*(200/h)}')
-  stages=$(awk '/Summary of Stages/{f=1;next} f&&/^ *[0-9]+:/{printf "%s=%ss ", $2 (NF>13?" "$3:""), $(NF>13?4:3)} /Event Stage/{f=0}' "$log" | head -c 300)
+  stages=$(awk -F: '/Summary of Stages/{f=1;next} /^ *[0-9]+: /&&f{split($3,a," "); gsub(/^ +| +$/,"",$2); gsub(/ /,"_",$2); printf "%s=%.2fs ", $2, a[1]} /Event Stage/{f=0}' "$log")
   printf "%-14s h=%-5s cells=%-8s ranks=%s threads=%s wall=%-8s newton/linear=%-9s peakRSS=%s kB (%.0f B/cell) %s\n" \
     "$label" "$h" "$cells" "$np" "$nt" "$wall" "$(echo $its | tr ' ' /)" "$rss" "$(awk -v r="$rss" -v c="$cells" 'BEGIN{print r*1024/c}')" "$stages"
 }
