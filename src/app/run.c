@@ -82,9 +82,9 @@ PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport
   PetscFunctionReturn(0);
 }
 
-PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
+/* Solve, then write and post-process; the caller owns s either way. */
+static PetscErrorCode SolveAndWrite(MPI_Comm comm, CFSteady s)
 {
-  CFSteady      s;
   CFSolveReport rep;
   PetscLogStage stage_solve, stage_output;
   PetscInt      levels, coarse_its;
@@ -92,20 +92,31 @@ PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
   PetscFunctionBeginUser;
   PetscCall(PetscLogStageRegister("Steady solve", &stage_solve));
   PetscCall(PetscLogStageRegister("Output and post-processing", &stage_output));
-  PetscCall(CFConfigView(cfg, PETSC_VIEWER_STDOUT_(comm)));
-  PetscCall(CFOutputDirPrepare(comm, cfg));
-
   PetscCall(PetscLogStagePush(stage_solve));
-  PetscCall(CFSteadyCreate(comm, cfg, &s));
   PetscCall(CFSteadySequenceInitialGuess(s, &levels, &coarse_its));
   if (levels) PetscCall(PetscPrintf(comm, "initial guess: %" PetscInt_FMT " coarser grids, %" PetscInt_FMT " Newton iterations on them\n", levels, coarse_its));
   PetscCall(CFSteadySolve(s, &rep));
   PetscCall(PetscLogStagePop());
   PetscCall(PetscPrintf(comm, "steady solve: %" PetscInt_FMT " Newton iterations, %" PetscInt_FMT " linear iterations, residual %.3e K -> %.3e K (%s), %.2f s\n", rep.nonlinear_iterations, rep.linear_iterations, (double)rep.initial_residual, (double)rep.final_residual, SNESConvergedReasons[rep.reason], (double)rep.seconds));
-
   PetscCall(PetscLogStagePush(stage_output));
   PetscCall(CFRunSteadyResults(comm, s, &rep, PETSC_TRUE, NULL));
   PetscCall(PetscLogStagePop());
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
+{
+  CFSteady       s;
+  PetscErrorCode ierr;
+
+  PetscFunctionBeginUser;
+  PetscCall(CFConfigView(cfg, PETSC_VIEWER_STDOUT_(comm)));
+  PetscCall(CFOutputDirPrepare(comm, cfg));
+  PetscCall(CFSteadyCreate(comm, cfg, &s));
+  /* a failed solve or write still frees the solver and the directory lock before reporting */
+  ierr = SolveAndWrite(comm, s);
   PetscCall(CFSteadyDestroy(&s));
+  PetscCall(CFOutputDirRelease(comm, cfg));
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }

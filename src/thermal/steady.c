@@ -47,16 +47,16 @@ static PetscErrorCode CheckFinite(CFSteady s, const DMDALocalInfo *info, CFCellS
   PetscFunctionBeginUser;
   /* The fields first: a bad value spreads into its neighbours' residuals through the stencil. */
   for (int pass = 0; pass < 2 && !msg[0]; pass++)
-  for (PetscInt j = info->ys; j < info->ys + info->ym && !msg[0]; j++)
-    for (PetscInt i = info->xs; i < info->xs + info->xm && !msg[0]; i++) {
-      const char *what = NULL;
-      PetscReal   v    = 0;
-      if (pass == 0 && !isfinite(x[j][i].T)) what = "temperature", v = x[j][i].T;
-      else if (pass == 0 && !isfinite(x[j][i].F)) what = "depletion", v = x[j][i].F;
-      else if (pass == 1 && !isfinite(f[j][i].T)) what = "residual of the temperature equation", v = f[j][i].T;
-      else if (pass == 1 && !isfinite(f[j][i].F)) what = "residual of the depletion equation", v = f[j][i].F;
-      if (what) snprintf(msg, sizeof(msg), "steady solve: %s is %s at cell (i, j) = (%d, %d), x = %g km, z = %g km", what, isnan(v) ? "NaN" : (v > 0 ? "+Inf" : "-Inf"), (int)i, (int)j, (double)CFMToKm((i + 0.5) * s->rc.dx), (double)CFMToKm((j + 0.5) * s->rc.dz));
-    }
+    for (PetscInt j = info->ys; j < info->ys + info->ym && !msg[0]; j++)
+      for (PetscInt i = info->xs; i < info->xs + info->xm && !msg[0]; i++) {
+        const char *what = NULL;
+        PetscReal   v    = 0;
+        if (pass == 0 && !isfinite(x[j][i].T)) what = "temperature", v = x[j][i].T;
+        else if (pass == 0 && !isfinite(x[j][i].F)) what = "depletion", v = x[j][i].F;
+        else if (pass == 1 && !isfinite(f[j][i].T)) what = "residual of the temperature equation", v = f[j][i].T;
+        else if (pass == 1 && !isfinite(f[j][i].F)) what = "residual of the depletion equation", v = f[j][i].F;
+        if (what) snprintf(msg, sizeof(msg), "steady solve: %s is %s at cell (i, j) = (%d, %d), x = %g km, z = %g km", what, isnan(v) ? "NaN" : (v > 0 ? "+Inf" : "-Inf"), (int)i, (int)j, (double)CFMToKm((i + 0.5) * s->rc.dx), (double)CFMToKm((j + 0.5) * s->rc.dz));
+      }
   PetscCallMPI(MPI_Comm_rank(s->comm, &rank));
   PetscCallMPI(MPI_Comm_size(s->comm, &size));
   mine = msg[0] ? rank : size;
