@@ -147,7 +147,8 @@ static PetscErrorCode Integrate(CFTransient tr, const CFConfig *cfg, PetscBool r
 
 PetscErrorCode CFRunTransient(MPI_Comm comm, const CFConfig *cfg)
 {
-  CFTransient tr;
+  CFTransient    tr;
+  PetscErrorCode ierr;
 
   PetscFunctionBeginUser;
   PetscCall(CFConfigView(cfg, PETSC_VIEWER_STDOUT_(comm)));
@@ -155,18 +156,21 @@ PetscErrorCode CFRunTransient(MPI_Comm comm, const CFConfig *cfg)
   PetscCall(CFOutputDirPrepare(comm, cfg));
   PetscCall(CFTransientSetInitialState(tr));
   PetscCall(PetscPrintf(comm, "transient: %s start, method %s, %s steps of %.6g Myr, to %.6g Myr\n", cfg->time_start, cfg->time_method, cfg->time_adaptive ? "adaptive" : "fixed", (double)cfg->time_step_myr, (double)cfg->time_end_myr));
-  PetscCall(Integrate(tr, cfg, PETSC_FALSE));
+  /* an interrupted or failed run still frees the integrator and the lock before reporting */
+  ierr = Integrate(tr, cfg, PETSC_FALSE);
   PetscCall(CFOutputDirRelease(comm, cfg));
   PetscCall(CFTransientDestroy(&tr));
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }
 
 PetscErrorCode CFResumeTransient(MPI_Comm comm, const char checkpoint[], int argc, char **argv)
 {
-  CFConfig    cfg;
-  CFTransient tr;
-  PetscReal   t;
-  PetscInt    step;
+  CFConfig       cfg;
+  CFTransient    tr;
+  PetscReal      t;
+  PetscInt       step;
+  PetscErrorCode ierr;
 
   PetscFunctionBeginUser;
   PetscCall(CFCheckpointReadConfig(comm, checkpoint, argc, argv, 3, &cfg));
@@ -174,7 +178,8 @@ PetscErrorCode CFResumeTransient(MPI_Comm comm, const char checkpoint[], int arg
   PetscCall(CFTransientCheckpointLoad(tr, checkpoint));
   PetscCall(CFTransientGetTime(tr, &t, &step, NULL));
   PetscCall(PetscPrintf(comm, "resuming %s at step %d, t = %.6g Myr, to %.6g Myr\n", checkpoint, (int)step, (double)CFSToMyr(t), (double)cfg.time_end_myr));
-  PetscCall(Integrate(tr, &cfg, PETSC_TRUE));
+  ierr = Integrate(tr, &cfg, PETSC_TRUE);
   PetscCall(CFTransientDestroy(&tr));
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }

@@ -78,7 +78,15 @@ PetscErrorCode CFSweepCasesCreate(MPI_Comm comm, CFSweep *sw)
   PetscCall(PetscCalloc1(sw->ncases, &sw->cases));
   for (PetscInt k = 0; k < sw->naxes; k++) PetscCall(PetscOptionsGetString(NULL, NULL, sw->axis[k].option, saved[k], sizeof(saved[k]), &had[k]));
   /* all cases are read before any runs: the first bad value stops the sweep before it starts */
-  for (PetscInt c = 0; c < sw->ncases; c++) PetscCall(ReadCase(comm, sw, c));
+  {
+    PetscErrorCode ierr = 0;
+    for (PetscInt c = 0; c < sw->ncases && !ierr; c++) ierr = ReadCase(comm, sw, c);
+    if (ierr) { /* refused before any case runs: nothing of the sweep is kept */
+      PetscCall(PetscFree(sw->cases));
+      sw->ncases = 0;
+      PetscCall(ierr);
+    }
+  }
   for (PetscInt k = 0; k < sw->naxes; k++) PetscCall(SetOption(sw->axis[k].option, had[k] ? saved[k] : NULL));
   PetscFunctionReturn(0);
 }
