@@ -132,7 +132,7 @@ static void Unlock(const char *dir)
 {
   char path[PETSC_MAX_PATH_LEN];
 
-  snprintf(path, sizeof(path), "%s/%s", dir, CF_LOCK_NAME);
+  if (snprintf(path, sizeof(path), "%s/%s", dir, CF_LOCK_NAME) >= (int)sizeof(path)) return; /* never locked: Lock refuses such a path */
   for (HeldLock **p = &held; *p; p = &(*p)->next)
     if (!strcmp((*p)->path, path)) {
       HeldLock *l = *p;
