@@ -9,14 +9,10 @@
 #include <crustforge/melting.h>
 #include <crustforge/steady.h>
 #include <crustforge/units.h>
+#include "cf_test.h"
 
 /* A PETSc call inside a Check test: fail the test, naming the call, on any error code. */
 #ifndef CK_PETSC
-#define CK_PETSC(call) \
-  do { \
-    PetscErrorCode ierr_ = (call); \
-    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
-  } while (0)
 #endif
 
 /* The derived fields, as src/config/config.c sets them: plate speed, adiabatic gradient (unless

@@ -12,6 +12,21 @@
 #define cf_assert_near(a, b, atol) \
   ck_assert_msg(PetscAbsReal((a) - (b)) <= (atol), "%s = %.15g, expected %.15g (atol %g)", #a, (double)(a), (double)(b), (double)(atol))
 
+/* A PETSc call inside a test: any error fails the test, naming the call. */
+#define CK_PETSC(call) \
+  do { \
+    PetscErrorCode ierr_ = (call); \
+    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
+  } while (0)
+
+/* One test case per test, so that CK_RUN_CASE=name picks one. */
+static inline void cf_add_case(Suite *s, const char *name, const TTest *test)
+{
+  TCase *tc = tcase_create(name);
+  tcase_add_test(tc, test);
+  suite_add_tcase(s, tc);
+}
+
 /* main() for a suite built by make_suite(). */
 #define CF_TEST_MAIN(make_suite) \
   int main(int argc, char **argv) \

@@ -8,11 +8,6 @@
 #include "cf_test.h"
 
 /* A PETSc call inside a Check test body (which returns void, so PetscCall cannot be used). */
-#define CK_PETSC(call) \
-  do { \
-    PetscErrorCode ierr_ = (call); \
-    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
-  } while (0)
 
 static char tmpdir[PETSC_MAX_PATH_LEN]; /* scratch directory of this suite, not model state */
 static char scenario[PETSC_MAX_PATH_LEN + 16];

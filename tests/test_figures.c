@@ -17,11 +17,6 @@
 #include <crustforge/units.h>
 #include "cf_test.h"
 
-#define CK_PETSC(call) \
-  do { \
-    PetscErrorCode ierr_ = (call); \
-    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
-  } while (0)
 
 #if defined(__SANITIZE_ADDRESS__)
 /* LeakSanitizer, on top of the suite's suppression file: fontconfig (under pango and PLplot's

@@ -8,7 +8,6 @@
 #include <crustforge/steady.h>
 #include "cf_test.h"
 
-#define CK_PETSC(call) ck_assert_int_eq((call), 0)
 
 /* A 10 x 10 grid of 20 km cells, linear melting: a solve of a fraction of a second. */
 static PetscErrorCode TinyConfig(CFConfig *cfg)

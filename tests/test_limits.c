@@ -10,7 +10,6 @@
 #include "../src/config/keys.h"
 #include "cf_test.h"
 
-#define CK_PETSC(call) ck_assert_int_eq((call), 0)
 
 /* A small grid for every key but the grid's own (keeps the derived checks away from the limit). */
 static PetscErrorCode SetContext(const char *section, const char *model)

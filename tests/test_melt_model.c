@@ -319,23 +319,15 @@ START_TEST(test_melt_ranks)
 }
 END_TEST
 
-/* One case per test, so that CK_RUN_CASE can pick one (ctest runs only "ranks" on 2 ranks). */
-static void AddCase(Suite *s, const char *name, const TTest *test)
-{
-  TCase *tc = tcase_create(name);
-  tcase_add_test(tc, test);
-  suite_add_tcase(s, tc);
-}
-
 static Suite *MeltModelSuite(void)
 {
   Suite *s = suite_create("melt_model");
-  AddCase(s, "conservation", test_melt_conservation);
-  AddCase(s, "normal_crust", test_melt_normal_crust);
-  AddCase(s, "slow_spreading", test_melt_slow_spreading);
-  AddCase(s, "potential_temperature", test_melt_potential_temperature);
-  AddCase(s, "water", test_melt_water);
-  AddCase(s, "ranks", test_melt_ranks);
+  cf_add_case(s, "conservation", test_melt_conservation);
+  cf_add_case(s, "normal_crust", test_melt_normal_crust);
+  cf_add_case(s, "slow_spreading", test_melt_slow_spreading);
+  cf_add_case(s, "potential_temperature", test_melt_potential_temperature);
+  cf_add_case(s, "water", test_melt_water);
+  cf_add_case(s, "ranks", test_melt_ranks);
   return s;
 }
 

@@ -14,11 +14,6 @@
 #include <crustforge/units.h>
 #include "cf_test.h"
 
-#define CK_PETSC(call) \
-  do { \
-    PetscErrorCode ierr_ = (call); \
-    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
-  } while (0)
 
 /* Invented scenario: 48 km x 24 km at 2 km gives the 24 x 12 test grid. */
 static const char *scenario_options[] = {"-grid_width", "48", "-grid_depth", "24", "-grid_spacing", "2", "-ridge_full_spreading_rate", "25", "-mantle_potential_temperature", "1380",

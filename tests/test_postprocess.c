@@ -13,11 +13,6 @@
 #include <crustforge/units.h>
 #include "cf_test.h"
 
-#define CK_PETSC(call) \
-  do { \
-    PetscErrorCode ierr_ = (call); \
-    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
-  } while (0)
 
 #define MYR (1.0e6 * CF_SECONDS_PER_YEAR)
 

@@ -296,21 +296,13 @@ START_TEST(test_thermal_adiabat)
 }
 END_TEST
 
-/* One case per test, so that CK_RUN_CASE can pick one. */
-static void AddCase(Suite *s, const char *name, const TTest *test)
-{
-  TCase *tc = tcase_create(name);
-  tcase_add_test(tc, test);
-  suite_add_tcase(s, tc);
-}
-
 static Suite *ThermalSuite(void)
 {
   Suite *s = suite_create("thermal");
-  AddCase(s, "manufactured", test_thermal_manufactured_order);
-  AddCase(s, "front", test_thermal_front_bounded);
-  AddCase(s, "half_space", test_thermal_half_space);
-  AddCase(s, "adiabat", test_thermal_adiabat);
+  cf_add_case(s, "manufactured", test_thermal_manufactured_order);
+  cf_add_case(s, "front", test_thermal_front_bounded);
+  cf_add_case(s, "half_space", test_thermal_half_space);
+  cf_add_case(s, "adiabat", test_thermal_adiabat);
   return s;
 }
 

@@ -9,11 +9,6 @@
 #include "cf_test.h"
 #include "cf_scenario.h"
 
-#define CK_PETSC(call) \
-  do { \
-    PetscErrorCode ierr_ = (call); \
-    ck_assert_msg(!ierr_, "%s failed with PETSc error %d", #call, (int)ierr_); \
-  } while (0)
 
 /* A small melting ridge: 100 km by 80 km at 10 km, katz2003, dry. */
 static void RidgeConfig(CFConfig *cfg, PetscReal end_myr, PetscReal step_myr, const char *method)

@@ -5,8 +5,6 @@
    harmonic-mean face conductivities. */
 #include "steady_impl.h"
 
-#define KCELL(info, kc, i, j) ((kc)[((j) - (info)->gys) * (info)->gxm + ((i) - (info)->gxs)])
-
 /* van Leer limited face value from upwind-upwind, upwind and downwind values: the increment
    0.5 phi(r) (Td - Tu) written without dividing by a vanishing difference. */
 static inline PetscReal LimitedFace(PetscReal Tuu, PetscReal Tu, PetscReal Td)
@@ -44,8 +42,6 @@ static PetscReal AdvectZ(const CFResidualCtx *rc, const CFCellState *const *x, P
   }
 }
 
-static inline PetscReal Harmonic(PetscReal a, PetscReal b) { return 2.0 * a * b / (a + b); }
-
 PetscReal CFEnergyResidualCell(const CFResidualCtx *rc, const DMDALocalInfo *info, const CFCellState *const *x, const PetscReal *kcell, PetscInt i, PetscInt j, PetscReal Gamma_V)
 {
   const PetscReal dx = rc->dx, dz = rc->dz, rcp = rc->rho * rc->cp, TP = x[j][i].T, kP = KCELL(info, kcell, i, j);
@@ -55,11 +51,11 @@ PetscReal CFEnergyResidualCell(const CFResidualCtx *rc, const DMDALocalInfo *inf
   adv = rcp * (AdvectX(rc, x, i + 1, j) - AdvectX(rc, x, i, j) + AdvectZ(rc, x, i, j) - AdvectZ(rc, x, i, j + 1));
 
   /* conductive heat flux, +x at the side faces and upward at the top and bottom faces */
-  if (i > 0) cond_x_in = -Harmonic(KCELL(info, kcell, i - 1, j), kP) * (TP - x[j][i - 1].T) / dx * dz;
-  if (i < rc->nx - 1) cond_x_out = -Harmonic(kP, KCELL(info, kcell, i + 1, j)) * (x[j][i + 1].T - TP) / dx * dz;
-  if (j > 0) cond_up_top = Harmonic(KCELL(info, kcell, i, j - 1), kP) * (TP - x[j - 1][i].T) / dz * dx;
+  if (i > 0) cond_x_in = -CFHarmonicMean(KCELL(info, kcell, i - 1, j), kP) * (TP - x[j][i - 1].T) / dx * dz;
+  if (i < rc->nx - 1) cond_x_out = -CFHarmonicMean(kP, KCELL(info, kcell, i + 1, j)) * (x[j][i + 1].T - TP) / dx * dz;
+  if (j > 0) cond_up_top = CFHarmonicMean(KCELL(info, kcell, i, j - 1), kP) * (TP - x[j - 1][i].T) / dz * dx;
   else cond_up_top = kP * (TP - rc->T_surface) / (0.5 * dz) * dx;
-  if (j < rc->nz - 1) cond_up_bot = Harmonic(kP, KCELL(info, kcell, i, j + 1)) * (x[j + 1][i].T - TP) / dz * dx;
+  if (j < rc->nz - 1) cond_up_bot = CFHarmonicMean(kP, KCELL(info, kcell, i, j + 1)) * (x[j + 1][i].T - TP) / dz * dx;
   else cond_up_bot = kP * (rc->T_bottom - TP) / (0.5 * dz) * dx;
 
   R = adv + (cond_x_out - cond_x_in) + (cond_up_top - cond_up_bot);

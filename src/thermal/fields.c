@@ -1,8 +1,6 @@
 /* Fields and integrals derived from the steady solution: for output and the summary. */
 #include "steady_impl.h"
 
-#define KCELL(info, kc, i, j) ((kc)[((j) - (info)->gys) * (info)->gxm + ((i) - (info)->gxs)])
-
 PetscErrorCode CFSteadyGetFields(CFSteady s, Vec T, Vec F, Vec Feq, Vec Gamma, Vec k)
 {
   DMDALocalInfo info;

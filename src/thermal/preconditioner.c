@@ -5,8 +5,6 @@
    operator (measured in DEVELOPERS.md). */
 #include "steady_impl.h"
 
-#define KCELL(info, kc, i, j) ((kc)[((j) - (info)->gys) * (info)->gxm + ((i) - (info)->gxs)])
-
 typedef struct {
   MatStencil  col[10];
   PetscScalar v[10];
@@ -26,8 +24,6 @@ static void Add(Row *r, PetscInt i, PetscInt j, PetscInt c, PetscScalar v)
   r->col[r->n].c = c;
   r->v[r->n++]   = v;
 }
-
-static inline PetscReal Harmonic(PetscReal a, PetscReal b) { return 2.0 * a * b / (a + b); }
 
 /* Energy row of cell (i, j): d(residual)/d(T, F) of the neighbours, before scaling. */
 static void EnergyRow(const CFResidualCtx *rc, const DMDALocalInfo *info, const CFCellState *const *x, const PetscReal *kcell, PetscInt i, PetscInt j, PetscBool decoupled, Row *r)
@@ -55,22 +51,22 @@ static void EnergyRow(const CFResidualCtx *rc, const DMDALocalInfo *info, const 
   }
   /* diffusion, conductivity frozen */
   if (i > 0) {
-    const PetscReal a = Harmonic(KCELL(info, kcell, i - 1, j), kP) * dz / dx;
+    const PetscReal a = CFHarmonicMean(KCELL(info, kcell, i - 1, j), kP) * dz / dx;
     Add(r, i, j, 0, a);
     Add(r, i - 1, j, 0, -a);
   }
   if (i + 1 < nx) {
-    const PetscReal a = Harmonic(kP, KCELL(info, kcell, i + 1, j)) * dz / dx;
+    const PetscReal a = CFHarmonicMean(kP, KCELL(info, kcell, i + 1, j)) * dz / dx;
     Add(r, i, j, 0, a);
     Add(r, i + 1, j, 0, -a);
   }
   if (j > 0) {
-    const PetscReal a = Harmonic(KCELL(info, kcell, i, j - 1), kP) * dx / dz;
+    const PetscReal a = CFHarmonicMean(KCELL(info, kcell, i, j - 1), kP) * dx / dz;
     Add(r, i, j, 0, a);
     Add(r, i, j - 1, 0, -a);
   } else Add(r, i, j, 0, 2.0 * kP * dx / dz);
   if (j + 1 < nz) {
-    const PetscReal a = Harmonic(kP, KCELL(info, kcell, i, j + 1)) * dx / dz;
+    const PetscReal a = CFHarmonicMean(kP, KCELL(info, kcell, i, j + 1)) * dx / dz;
     Add(r, i, j, 0, a);
     Add(r, i, j + 1, 0, -a);
   } else Add(r, i, j, 0, 2.0 * kP * dx / dz);

@@ -3,18 +3,15 @@
 #include <crustforge/units.h>
 #include "steady_impl.h"
 
-#define KCELL(info, kc, i, j) ((kc)[((j) - (info)->gys) * (info)->gxm + ((i) - (info)->gxs)])
-
 PetscErrorCode CFSteadyEquilibriumMelt(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x)
 {
   PetscInt n = 0;
 
   PetscFunctionBeginUser;
+  /* work_P holds the owned cells' pressures of the solver's own layout (filled at creation) */
+  PetscCheck(info->xs == s->owned.xs && info->ys == s->owned.ys && info->xm == s->owned.xm && info->ym == s->owned.ym, PETSC_COMM_SELF, PETSC_ERR_PLIB, "equilibrium melt: grid layout differs from the solver's");
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
-    for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
-      s->work_P[n] = CFPressure(&s->rc, (j + 0.5) * s->rc.dz);
-      s->work_T[n] = x[j][i].T;
-    }
+    for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) s->work_T[n] = x[j][i].T;
   PetscCall(CFMeltingModelMeltFractionArray(s->melting, n, s->work_P, s->work_T, s->work_F, s->work_dF));
   PetscFunctionReturn(0);
 }
@@ -137,6 +134,9 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
   PetscCall(CFFlowCornerStreamFunction(s->flow, cfg->dx, cfg->dz, info.gxs, info.gxm + 1, info.gys, info.gym + 1, s->rc.corners.psi));
   s->nowned = info.xm * info.ym;
   PetscCall(PetscMalloc4(s->nowned, &s->work_P, s->nowned, &s->work_T, s->nowned, &s->work_F, s->nowned, &s->work_dF));
+  s->owned = info;
+  for (PetscInt j = info.ys, n = 0; j < info.ys + info.ym; j++)
+    for (PetscInt i = info.xs; i < info.xs + info.xm; i++, n++) s->work_P[n] = CFPressure(&s->rc, (j + 0.5) * cfg->dz);
   PetscCall(PetscCalloc1(info.gxm * info.gym, &s->kcell));
 
   /* Newton-Krylov: the Jacobian is applied matrix-free and preconditioned by the sparse LU of an

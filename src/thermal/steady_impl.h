@@ -16,6 +16,12 @@ typedef struct {
 #define CF_QX(c, a, j) (CF_PSI(c, a, (j) + 1) - CF_PSI(c, a, j))
 #define CF_QZ(c, i, b) (CF_PSI(c, (i) + 1, b) - CF_PSI(c, i, b))
 
+/* Cell (i, j) of an array over a rank's ghosted patch (the conductivity kcell). */
+#define KCELL(info, kc, i, j) ((kc)[((j) - (info)->gys) * (info)->gxm + ((i) - (info)->gxs)])
+
+/* Face conductivity between two cells. */
+static inline PetscReal CFHarmonicMean(PetscReal a, PetscReal b) { return 2.0 * a * b / (a + b); }
+
 /* What the cell residuals need, in SI. */
 typedef struct {
   PetscInt        nx, nz;
@@ -47,6 +53,7 @@ struct _p_CFSteady {
   CFResidualCtx  rc;
   /* per-owned-cell work for the threaded melting model */
   PetscInt       nowned;
+  DMDALocalInfo  owned; /* the layout work_* follow */
   PetscReal     *work_P, *work_T, *work_F, *work_dF;
   PetscReal     *kcell; /* conductivity over the ghosted patch */
 };
