@@ -17,7 +17,7 @@ PetscErrorCode CFSteadyEquilibriumMelt(CFSteady s, const DMDALocalInfo *info, co
 }
 
 /* Conductivity of every owned cell and of the neighbours across its faces. */
-void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x)
+void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscBool with_derivative)
 {
   const PetscReal dx = s->rc.dx, dz = s->rc.dz;
   const PetscInt  i0 = PetscMax(info->xs - 1, 0), i1 = PetscMin(info->xs + info->xm + 1, info->mx);
@@ -29,6 +29,7 @@ void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCe
       const PetscBool owned_col = (PetscBool)(i >= info->xs && i < info->xs + info->xm);
       if (!owned_row && !owned_col) continue; /* star stencil: corner ghosts are never used */
       KCELL(info, s->kcell, i, j) = CFConductivity(&s->rc, (i + 0.5) * dx, (j + 0.5) * dz, x[j][i].T);
+      if (with_derivative) KCELL(info, s->dkcell, i, j) = CFConductivityDerivative(&s->rc, (i + 0.5) * dx, (j + 0.5) * dz, x[j][i].T);
     }
   }
 }
@@ -69,7 +70,7 @@ static PetscErrorCode FormFunctionLocal(DMDALocalInfo *info, CFCellState **x, CF
   PetscInt n = 0;
 
   PetscFunctionBeginUser;
-  CFSteadyConductivityPatch(s, info, (const CFCellState *const *)x);
+  CFSteadyConductivityPatch(s, info, (const CFCellState *const *)x, PETSC_FALSE);
   PetscCall(CFSteadyEquilibriumMelt(s, info, (const CFCellState *const *)x));
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
@@ -79,6 +80,42 @@ static PetscErrorCode FormFunctionLocal(DMDALocalInfo *info, CFCellState **x, CF
     }
   PetscCall(CheckFinite(s, info, x, f));
   PetscCall(PetscLogFlops(200.0 * info->xm * info->ym));
+  PetscFunctionReturn(0);
+}
+
+/* An option's value unless the user gave one. */
+static PetscErrorCode SetDefaultOption(const char name[], const char value[])
+{
+  PetscBool has;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscOptionsHasName(NULL, NULL, name, &has));
+  if (!has) PetscCall(PetscOptionsSetValue(NULL, name, value));
+  PetscFunctionReturn(0);
+}
+
+/* The preconditioner of the coupled Newton step: the depletion is eliminated first (its block is
+   the identity minus upstream transport, which one Gauss-Seidel sweep nearly inverts), leaving a
+   Schur complement in temperature alone: the five-point heat equation with latent heat folded
+   into the heat capacity where cells melt (PETSc's "selfp" approximation).  That scalar
+   advection-diffusion operator gets one V-cycle of algebraic multigrid (hypre BoomerAMG).
+   Measured in DEVELOPERS.md. */
+static PetscErrorCode SetSchurPreconditioner(PC pc)
+{
+  const PetscInt depletion[] = {1}, temperature[] = {0};
+
+  PetscFunctionBeginUser;
+  PetscCall(PCSetType(pc, PCFIELDSPLIT));
+  PetscCall(PCFieldSplitSetBlockSize(pc, 2));
+  PetscCall(PCFieldSplitSetFields(pc, "depletion", 1, depletion, depletion));
+  PetscCall(PCFieldSplitSetFields(pc, "temperature", 1, temperature, temperature));
+  PetscCall(PCFieldSplitSetType(pc, PC_COMPOSITE_SCHUR));
+  PetscCall(PCFieldSplitSetSchurFactType(pc, PC_FIELDSPLIT_SCHUR_FACT_FULL));
+  PetscCall(PCFieldSplitSetSchurPre(pc, PC_FIELDSPLIT_SCHUR_PRE_SELFP, NULL));
+  PetscCall(SetDefaultOption("-fieldsplit_depletion_ksp_type", "preonly"));
+  PetscCall(SetDefaultOption("-fieldsplit_depletion_pc_type", "sor"));
+  PetscCall(SetDefaultOption("-fieldsplit_temperature_ksp_type", "preonly"));
+  PetscCall(SetDefaultOption("-fieldsplit_temperature_pc_type", "hypre"));
   PetscFunctionReturn(0);
 }
 
@@ -137,49 +174,47 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
   s->owned = info;
   for (PetscInt j = info.ys, n = 0; j < info.ys + info.ym; j++)
     for (PetscInt i = info.xs; i < info.xs + info.xm; i++, n++) s->work_P[n] = CFPressure(&s->rc, (j + 0.5) * cfg->dz);
-  PetscCall(PetscCalloc1(info.gxm * info.gym, &s->kcell));
+  PetscCall(PetscCalloc2(info.gxm * info.gym, &s->kcell, info.gxm * info.gym, &s->dkcell));
 
-  /* Newton-Krylov: the Jacobian is applied matrix-free and preconditioned by the sparse LU of an
-     assembled first-order approximation (preconditioner.c); -steady_jacobian coloring uses the
-     exact coloured finite-difference Jacobian instead.  Measured in DEVELOPERS.md; -snes_*,
-     -ksp_*, -pc_* override. */
+  /* Newton-Krylov: GMRES on the analytic Jacobian, preconditioned by an assembled first-order
+     approximation (jacobian.c); -steady_jacobian split uses coloured finite differences as the
+     operator, coloring factors those directly.  Measured in DEVELOPERS.md; -snes_*, -ksp_*,
+     -pc_* override. */
   PetscCall(SNESCreate(comm, &s->snes));
   PetscCall(SNESSetDM(s->snes, s->da));
   PetscCall(DMDASNESSetFunctionLocal(s->da, INSERT_VALUES, (DMDASNESFunction)FormFunctionLocal, s));
   PetscCall(SNESSetTolerances(s->snes, 1e-6, 1e-9, 0.0, 50, PETSC_DEFAULT));
   {
-    const char *const kinds[] = {"split", "coloring", "picard", "CFSteadyJacobian", "", NULL};
+    const char *const kinds[] = {"analytic", "split", "coloring", "picard", "CFSteadyJacobian", "", NULL};
     PetscEnum         kind    = 0;
     PetscOptionsBegin(comm, "steady_", "Steady coupled solver", "crustforge");
-    PetscCall(PetscOptionsEnum("-jacobian", "split: coloured finite-difference Jacobian as operator, GMRES preconditioned by the LU of a first-order five-point approximation; coloring: the coloured Jacobian factored directly; picard: outer iterations (temperature with the melting rate frozen, then depletion with the temperature frozen), for comparison", NULL, kinds, kind, &kind, NULL));
+    PetscCall(PetscOptionsEnum("-jacobian", "analytic: the exact Jacobian as operator, GMRES preconditioned by a first-order five-point approximation; split: the same with coloured finite differences as operator; coloring: the coloured Jacobian factored directly; picard: outer iterations (temperature with the melting rate frozen, then depletion with the temperature frozen), for comparison", NULL, kinds, kind, &kind, NULL));
     PetscOptionsEnd();
-    s->use_coloring = (PetscBool)(kind == 1);
-    s->decoupled    = (PetscBool)(kind == 2);
+    s->analytic     = (PetscBool)(kind == 0);
+    s->use_coloring = (PetscBool)(kind == 2);
+    s->decoupled    = (PetscBool)(kind == 3);
   }
   PetscCall(SNESGetKSP(s->snes, &ksp));
   PetscCall(KSPGetPC(ksp, &pc));
-  {
+  if (s->use_coloring) {
+    PetscCall(KSPSetType(ksp, KSPPREONLY));
+    PetscCall(PCSetType(pc, PCLU));
+    PetscCall(PCFactorSetMatSolverType(pc, MATSOLVERMUMPS));
+  } else if (s->decoupled) {
     PetscMPIInt size;
-    PetscBool   has;
     PetscCallMPI(MPI_Comm_size(comm, &size));
-    if (size == 1 || s->use_coloring) {
-      PetscCall(PCSetType(pc, PCLU));
-      PetscCall(PCFactorSetMatSolverType(pc, MATSOLVERMUMPS));
-    } else {
-      /* in parallel, overlapping subdomains with a local LU each: about as few GMRES iterations
-         as the global LU here, without its slow distributed triangular solves */
-      PetscCall(PCSetType(pc, PCASM));
-      PetscCall(PetscOptionsHasName(NULL, NULL, "-sub_pc_type", &has));
-      if (!has) PetscCall(PetscOptionsSetValue(NULL, "-sub_pc_type", "lu"));
-    }
-  }
-  if (s->use_coloring) PetscCall(KSPSetType(ksp, KSPPREONLY));
-  else if (s->decoupled) {
     PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
     PetscCall(DMCreateMatrix(s->da, &s->P));
     PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_FALSE));
     PetscCall(SNESSetJacobian(s->snes, s->P, s->P, CFSteadyFormJacobian, s));
     PetscCall(KSPSetType(ksp, KSPPREONLY));
+    if (size == 1) {
+      PetscCall(PCSetType(pc, PCLU));
+      PetscCall(PCFactorSetMatSolverType(pc, MATSOLVERMUMPS));
+    } else {
+      PetscCall(PCSetType(pc, PCASM));
+      PetscCall(SetDefaultOption("-sub_pc_type", "lu"));
+    }
   } else {
     PetscCall(DMCreateMatrix(s->da, &s->A));
     PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
@@ -189,6 +224,7 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
     PetscCall(KSPSetType(ksp, KSPGMRES));
     PetscCall(KSPGMRESSetRestart(ksp, 100));
     PetscCall(KSPSetTolerances(ksp, 1e-8, PETSC_DEFAULT, PETSC_DEFAULT, 200));
+    PetscCall(SetSchurPreconditioner(pc));
   }
   PetscCall(SNESSetFromOptions(s->snes));
   *out = s;
@@ -211,7 +247,7 @@ PetscErrorCode CFSteadyDestroy(CFSteady *ps)
   PetscCall(CFMeltingModelDestroy(&s->melting));
   PetscCall(PetscFree(s->rc.corners.psi));
   PetscCall(PetscFree4(s->work_P, s->work_T, s->work_F, s->work_dF));
-  PetscCall(PetscFree(s->kcell));
+  PetscCall(PetscFree2(s->kcell, s->dkcell));
   PetscCall(PetscFree(*ps));
   PetscFunctionReturn(0);
 }
@@ -325,6 +361,10 @@ PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *r)
     }
     s->cfg.nusselt = nu;
   }
+  /* Newton leaves the depletion within the tolerance of max(F_eq, F_up); the sweep makes it
+     exactly that for the converged temperature, so cells that carry depletion without melting
+     have no round-off melting rate (which post-processing would count as melting). */
+  if (r->reason > 0) PetscCall(CFDepletionSweep(s, s->X));
   r->seconds = MPI_Wtime() - t0;
   PetscCheck(r->reason > 0, s->comm, PETSC_ERR_NOT_CONVERGED, "steady solve did not converge: %s after %" PetscInt_FMT " Newton iterations, residual %g K (from %g K)", SNESConvergedReasons[r->reason], r->nonlinear_iterations, (double)r->final_residual, (double)r->initial_residual);
   PetscFunctionReturn(0);

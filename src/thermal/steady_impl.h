@@ -22,6 +22,28 @@ typedef struct {
 /* Face conductivity between two cells. */
 static inline PetscReal CFHarmonicMean(PetscReal a, PetscReal b) { return 2.0 * a * b / (a + b); }
 
+/* One assembled Jacobian row being built: columns as DMDA stencils, repeated columns summed.
+   Sixteen covers the widest row (nine temperatures of the width-2 star, five depletions). */
+typedef struct {
+  MatStencil  col[16];
+  PetscScalar v[16];
+  PetscInt    n;
+} CFJacRow;
+
+static inline void CFJacRowAdd(CFJacRow *r, PetscInt i, PetscInt j, PetscInt c, PetscScalar v)
+{
+  for (PetscInt k = 0; k < r->n; k++)
+    if (r->col[k].i == i && r->col[k].j == j && r->col[k].c == c) {
+      r->v[k] += v;
+      return;
+    }
+  r->col[r->n].i = i;
+  r->col[r->n].j = j;
+  r->col[r->n].k = 0;
+  r->col[r->n].c = c;
+  r->v[r->n++]   = v;
+}
+
 /* What the cell residuals need, in SI. */
 typedef struct {
   PetscInt        nx, nz;
@@ -45,8 +67,9 @@ struct _p_CFSteady {
   DM             da, da1; /* dof 2 (T, F) and dof 1 with the same layout */
   SNES           snes;
   Vec            X;
-  Mat            A, P; /* Jacobian (coloured differences) and its first-order approximation */
+  Mat            A, P; /* Jacobian and its first-order five-point approximation */
   PetscBool      use_coloring;
+  PetscBool      analytic;  /* the operator is the analytic Jacobian (else coloured differences) */
   PetscBool      decoupled; /* outer (Picard) iterations: no temperature-depletion coupling in the Jacobian */
   CFFlow         flow;
   CFMeltingModel melting;
@@ -55,26 +78,33 @@ struct _p_CFSteady {
   PetscInt       nowned;
   DMDALocalInfo  owned; /* the layout work_* follow */
   PetscReal     *work_P, *work_T, *work_F, *work_dF;
-  PetscReal     *kcell; /* conductivity over the ghosted patch */
+  PetscReal     *kcell, *dkcell; /* conductivity and its temperature derivative over the ghosted patch */
 };
 
-/* Effective conductivity at a cell centre (hydrothermal enhancement included). */
+/* Effective conductivity at a cell centre (hydrothermal enhancement included), and its
+   derivative in T. */
 PetscReal CFConductivity(const CFResidualCtx *rc, PetscReal x, PetscReal z, PetscReal T);
+PetscReal CFConductivityDerivative(const CFResidualCtx *rc, PetscReal x, PetscReal z, PetscReal T);
 /* Lithostatic pressure (Pa) at depth z. */
 static inline PetscReal CFPressure(const CFResidualCtx *rc, PetscReal z) { return rc->rho * rc->gravity * z; }
 
 /* Energy residual of owned cell (i, j), scaled to K.  kcell covers the ghosted patch
    (indexing as CF_PSI without the corner row); Gamma_V is the melting rate times cell volume. */
 PetscReal CFEnergyResidualCell(const CFResidualCtx *rc, const DMDALocalInfo *info, const CFCellState *const *x, const PetscReal *kcell, PetscInt i, PetscInt j, PetscReal Gamma_V);
+/* Exact derivatives of the cell's limited advection (the first term of CFEnergyResidualCell,
+   before scaling) with respect to the temperatures it reads, added to r. */
+void CFEnergyAdvectionJacobian(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, CFJacRow *r);
 /* Melting rate times cell volume (kg m-1 s-1, per unit ridge length) from the depletion of the
    cell and its upstream neighbours, and the upstream depletion F_up. */
 PetscReal CFDepletionMeltingRate(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal *F_up);
 /* Depletion F_d of the cells in upstream order for the temperatures in X, exact (the same on any
    rank count): F_d = max(F_eq, F_up).  Repeats local sweeps with ghost updates until nothing changes. */
 PetscErrorCode CFDepletionSweep(CFSteady s, Vec X);
-/* Conductivity of the owned cells and their face neighbours into s->kcell. */
-void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x);
-/* Jacobian by coloured differences into J, first-order approximation into P (preconditioner.c). */
+/* Conductivity of the owned cells and their face neighbours into s->kcell (and, when
+   with_derivative, its temperature derivative into s->dkcell). */
+void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscBool with_derivative);
+/* The Jacobian into J (analytic, or by coloured differences), its first-order five-point
+   approximation into P (jacobian.c). */
 PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ctx);
 /* Fill fine's solution by interpolating coarse's temperature, then the depletion sweep. */
 PetscErrorCode CFSteadyInterpolateFrom(CFSteady fine, CFSteady coarse);

@@ -69,7 +69,7 @@ static PetscErrorCode IFunctionLocal(DMDALocalInfo *info, PetscReal t, CFCellSta
   PetscCall(TSGetTimeStep(tr->ts, &dt));
   dt *= tr->theta;
   PetscCall(CFTransientSetParameters(tr, t));
-  CFSteadyConductivityPatch(s, info, (const CFCellState *const *)x);
+  CFSteadyConductivityPatch(s, info, (const CFCellState *const *)x, PETSC_FALSE);
   PetscCall(CFSteadyEquilibriumMelt(s, info, (const CFCellState *const *)x));
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {

@@ -1,0 +1,164 @@
+/* The steady Jacobian.  The operator is the exact derivative of the residual: the limited
+   advection (energy.c), diffusion with the temperature-dependent conductivity, latent heat and
+   the active depletion branch; -steady_jacobian split or coloring takes coloured finite
+   differences of the residual instead.  The preconditioner is an assembled approximation with
+   the five-point stencil: first-order upwind advection and the conductivity frozen, whose
+   factorization is far cheaper than that of the operator (measured in DEVELOPERS.md). */
+#include "steady_impl.h"
+
+/* First-order upwind advection of cell (i, j), signs as in energy.c. */
+static void UpwindAdvection(const CFResidualCtx *rc, PetscInt i, PetscInt j, CFJacRow *r)
+{
+  const CFCornerPsi *c   = &rc->corners;
+  const PetscReal    rcp = rc->rho * rc->cp;
+  const PetscReal    qL = CF_QX(c, i, j), qR = CF_QX(c, i + 1, j), qT = CF_QZ(c, i, j), qB = CF_QZ(c, i, j + 1);
+
+  if (i > 0) {
+    if (qL >= 0.0) CFJacRowAdd(r, i - 1, j, 0, -rcp * qL);
+    else CFJacRowAdd(r, i, j, 0, -rcp * qL);
+  }
+  if (i + 1 == rc->nx || qR >= 0.0) CFJacRowAdd(r, i, j, 0, rcp * qR);
+  else CFJacRowAdd(r, i + 1, j, 0, rcp * qR);
+  if (j > 0) {
+    if (qT >= 0.0) CFJacRowAdd(r, i, j, 0, rcp * qT);
+    else CFJacRowAdd(r, i, j - 1, 0, rcp * qT);
+  }
+  if (j + 1 < rc->nz) {
+    if (qB >= 0.0) CFJacRowAdd(r, i, j + 1, 0, -rcp * qB);
+    else CFJacRowAdd(r, i, j, 0, -rcp * qB);
+  }
+}
+
+/* The conductive term -c H(kP, kQ) (TQ - TP) of neighbour Q = (iq, jq); dk (NULL: conductivity
+   frozen) adds the derivative through the harmonic mean. */
+static void DiffusionFace(const DMDALocalInfo *info, const CFCellState *const *x, const PetscReal *kcell, const PetscReal *dk, PetscInt i, PetscInt j, PetscInt iq, PetscInt jq, PetscReal c, CFJacRow *r)
+{
+  const PetscReal kP = KCELL(info, kcell, i, j), kQ = KCELL(info, kcell, iq, jq), H = CFHarmonicMean(kP, kQ);
+  PetscReal       dP = c * H, dQ = -c * H;
+
+  if (dk) {
+    const PetscReal dT = x[jq][iq].T - x[j][i].T, s2 = (kP + kQ) * (kP + kQ);
+    dP -= c * dT * 2.0 * kQ * kQ / s2 * KCELL(info, dk, i, j);
+    dQ -= c * dT * 2.0 * kP * kP / s2 * KCELL(info, dk, iq, jq);
+  }
+  CFJacRowAdd(r, i, j, 0, dP);
+  CFJacRowAdd(r, iq, jq, 0, dQ);
+}
+
+static void Diffusion(const CFResidualCtx *rc, const DMDALocalInfo *info, const CFCellState *const *x, const PetscReal *kcell, const PetscReal *dk, PetscInt i, PetscInt j, CFJacRow *r)
+{
+  const PetscReal cx = rc->dz / rc->dx, cz = rc->dx / rc->dz, kP = KCELL(info, kcell, i, j), dkP = dk ? KCELL(info, dk, i, j) : 0.0, TP = x[j][i].T;
+
+  if (i > 0) DiffusionFace(info, x, kcell, dk, i, j, i - 1, j, cx, r);
+  if (i + 1 < rc->nx) DiffusionFace(info, x, kcell, dk, i, j, i + 1, j, cx, r);
+  if (j > 0) DiffusionFace(info, x, kcell, dk, i, j, i, j - 1, cz, r);
+  else CFJacRowAdd(r, i, j, 0, 2.0 * cz * (kP + dkP * (TP - rc->T_surface))); /* half cell to the surface */
+  if (j + 1 < rc->nz) DiffusionFace(info, x, kcell, dk, i, j, i, j + 1, cz, r);
+  else CFJacRowAdd(r, i, j, 0, 2.0 * cz * (kP - dkP * (rc->T_bottom - TP)));
+}
+
+/* Latent heat T dS Gamma V, Gamma V = rho (out_q F_P - in_q F_upstream). */
+static void LatentHeat(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, CFJacRow *r)
+{
+  const CFCornerPsi *c   = &rc->corners;
+  const PetscReal    qL = CF_QX(c, i, j), qR = CF_QX(c, i + 1, j), qT = CF_QZ(c, i, j), qB = CF_QZ(c, i, j + 1);
+  const PetscReal    TdS = x[j][i].T * rc->entropy_of_fusion * rc->rho;
+  PetscReal          out_q = 0.0, F_up, GV;
+
+  if (rc->entropy_of_fusion <= 0.0) return;
+  GV = CFDepletionMeltingRate(rc, x, i, j, &F_up);
+  CFJacRowAdd(r, i, j, 0, rc->entropy_of_fusion * GV);
+  if (qL > 0.0) { if (i > 0) CFJacRowAdd(r, i - 1, j, 1, -TdS * qL); } else out_q -= qL;
+  if (qR < 0.0) { if (i + 1 < rc->nx) CFJacRowAdd(r, i + 1, j, 1, TdS * qR); } else out_q += qR;
+  if (qB > 0.0) { if (j + 1 < rc->nz) CFJacRowAdd(r, i, j + 1, 1, -TdS * qB); } else out_q -= qB;
+  if (qT < 0.0) { if (j > 0) CFJacRowAdd(r, i, j - 1, 1, TdS * qT); } else out_q += qT;
+  CFJacRowAdd(r, i, j, 1, TdS * out_q);
+}
+
+/* Energy row of cell (i, j), scaled as the residual: exact, or the five-point approximation. */
+static void EnergyRow(const CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscInt i, PetscInt j, PetscBool exact, CFJacRow *r)
+{
+  const CFResidualCtx *rc = &s->rc;
+
+  if (exact) CFEnergyAdvectionJacobian(rc, x, i, j, r);
+  else UpwindAdvection(rc, i, j, r);
+  Diffusion(rc, info, x, s->kcell, exact ? s->dkcell : NULL, i, j, r);
+  if (exact || !s->decoupled) LatentHeat(rc, x, i, j, r);
+  if (exact && rc->source) { /* a verification hook: central difference in T */
+    const PetscReal h = 1e-3, xc = (i + 0.5) * rc->dx, zc = (j + 0.5) * rc->dz, T = x[j][i].T;
+    CFJacRowAdd(r, i, j, 0, -(rc->source(xc, zc, T + h, rc->sctx) - rc->source(xc, zc, T - h, rc->sctx)) / (2.0 * h) * rc->dx * rc->dz);
+  }
+  for (PetscInt k = 0; k < r->n; k++) r->v[k] /= rc->energy_scale;
+}
+
+/* Depletion row: F_P - max(F_eq(T_P), F_up(F of the upstream neighbours)); exact on its branch. */
+static void DepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal Feq, PetscReal dFeq, PetscBool decoupled, CFJacRow *r)
+{
+  const CFCornerPsi *c = &rc->corners;
+  const PetscReal    s = rc->depletion_scale;
+  const PetscReal    qL = CF_QX(c, i, j), qR = CF_QX(c, i + 1, j), qT = CF_QZ(c, i, j), qB = CF_QZ(c, i, j + 1);
+  PetscReal          F_up, in_q;
+
+  CFJacRowAdd(r, i, j, 1, s);
+  (void)CFDepletionMeltingRate(rc, x, i, j, &F_up);
+  /* both branches always enter the pattern (one with zeros), so the nonzero structure and its
+     symbolic factorization stay fixed as cells start or stop melting */
+  {
+    const PetscBool eq = (PetscBool)(Feq > F_up); /* a tie (fertile: both 0) takes the transport branch, as a forward difference does */
+    in_q               = PetscMax(qL, 0.0) + PetscMax(-qR, 0.0) + PetscMax(qB, 0.0) + PetscMax(-qT, 0.0);
+    CFJacRowAdd(r, i, j, 0, (eq && !decoupled) ? -s * dFeq : 0.0);
+    if (in_q <= 0.0) return;
+    if (i > 0) CFJacRowAdd(r, i - 1, j, 1, (!eq && qL > 0.0) ? -s * qL / in_q : 0.0);
+    if (i + 1 < rc->nx) CFJacRowAdd(r, i + 1, j, 1, (!eq && qR < 0.0) ? s * qR / in_q : 0.0);
+    if (j + 1 < rc->nz) CFJacRowAdd(r, i, j + 1, 1, (!eq && qB > 0.0) ? -s * qB / in_q : 0.0);
+    if (j > 0) CFJacRowAdd(r, i, j - 1, 1, (!eq && qT < 0.0) ? s * qT / in_q : 0.0);
+  }
+}
+
+/* The rows of every owned cell into M: exact, or the five-point approximation. */
+static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscBool exact, Mat M)
+{
+  PetscInt n = 0;
+
+  PetscFunctionBeginUser;
+  PetscCall(MatZeroEntries(M));
+  for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
+    for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
+      MatStencil row = {.i = i, .j = j, .k = 0, .c = 0};
+      CFJacRow   r   = {.n = 0};
+      EnergyRow(s, info, x, i, j, exact, &r);
+      PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
+      r.n   = 0;
+      row.c = 1;
+      DepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->decoupled && !exact), &r);
+      PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
+    }
+  PetscCall(MatAssemblyBegin(M, MAT_FINAL_ASSEMBLY));
+  PetscCall(MatAssemblyEnd(M, MAT_FINAL_ASSEMBLY));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ptr)
+{
+  CFSteady      s = (CFSteady)ptr;
+  DM            da;
+  DMDALocalInfo info;
+  Vec           Xl;
+  CFCellState **x;
+
+  PetscFunctionBeginUser;
+  PetscCall(SNESGetDM(snes, &da));
+  PetscCall(DMDAGetLocalInfo(da, &info));
+  PetscCall(DMGetLocalVector(da, &Xl));
+  PetscCall(DMGlobalToLocal(da, X, INSERT_VALUES, Xl));
+  PetscCall(DMDAVecGetArrayRead(da, Xl, &x));
+  CFSteadyConductivityPatch(s, &info, (const CFCellState *const *)x, s->analytic);
+  PetscCall(CFSteadyEquilibriumMelt(s, &info, (const CFCellState *const *)x));
+  PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_FALSE, P));
+  if (J != P && s->analytic) PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_TRUE, J));
+  PetscCall(DMDAVecRestoreArrayRead(da, Xl, &x));
+  PetscCall(DMRestoreLocalVector(da, &Xl));
+  /* or coloured finite differences of the full residual (the DM supplies the colouring) */
+  if (J != P && !s->analytic) PetscCall(SNESComputeJacobianDefaultColor(snes, X, J, J, NULL));
+  PetscFunctionReturn(0);
+}
