@@ -1,9 +1,10 @@
 /* The steady Jacobian.  The operator is the exact derivative of the residual: the limited
    advection (energy.c), diffusion with the temperature-dependent conductivity, latent heat and
    the active depletion branch; -steady_jacobian split or coloring takes coloured finite
-   differences of the residual instead.  The preconditioner is an assembled approximation with
-   the five-point stencil: first-order upwind advection and the conductivity frozen, whose
-   factorization is far cheaper than that of the operator (measured in DEVELOPERS.md). */
+   differences of the residual instead.  The preconditioner (schur.c) is built from a five-point
+   approximation: first-order upwind advection and the conductivity frozen (measured in
+   DEVELOPERS.md); -steady_jacobian picard assembles that approximation, without the coupling,
+   as the operator itself. */
 #include "steady_impl.h"
 
 /* First-order upwind advection of cell (i, j), signs as in energy.c. */
@@ -92,7 +93,7 @@ static void EnergyRow(const CFSteady s, const DMDALocalInfo *info, const CFCellS
 }
 
 /* Depletion row: F_P - max(F_eq(T_P), F_up(F of the upstream neighbours)); exact on its branch. */
-static void DepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal Feq, PetscReal dFeq, PetscBool decoupled, CFJacRow *r)
+void CFSteadyDepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal Feq, PetscReal dFeq, PetscBool decoupled, CFJacRow *r)
 {
   const CFCornerPsi *c = &rc->corners;
   const PetscReal    s = rc->depletion_scale;
@@ -115,6 +116,8 @@ static void DepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, P
   }
 }
 
+void CFSteadyApproximateEnergyRow(const CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscInt i, PetscInt j, CFJacRow *r) { EnergyRow(s, info, x, i, j, PETSC_FALSE, r); }
+
 /* The rows of every owned cell into M: exact, or the five-point approximation. */
 static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscBool exact, Mat M)
 {
@@ -130,7 +133,7 @@ static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCe
       PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
       r.n   = 0;
       row.c = 1;
-      DepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->decoupled && !exact), &r);
+      CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->decoupled && !exact), &r);
       PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
     }
   PetscCall(MatAssemblyBegin(M, MAT_FINAL_ASSEMBLY));
@@ -154,11 +157,14 @@ PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ptr)
   PetscCall(DMDAVecGetArrayRead(da, Xl, &x));
   CFSteadyConductivityPatch(s, &info, (const CFCellState *const *)x, s->analytic);
   PetscCall(CFSteadyEquilibriumMelt(s, &info, (const CFCellState *const *)x));
-  PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_FALSE, P));
-  if (J != P && s->analytic) PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_TRUE, J));
+  if (s->decoupled) PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_FALSE, P));
+  else {
+    PetscCall(CFSchurAssemble(s, &info, (const CFCellState *const *)x));
+    if (s->analytic) PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_TRUE, J));
+  }
   PetscCall(DMDAVecRestoreArrayRead(da, Xl, &x));
   PetscCall(DMRestoreLocalVector(da, &Xl));
   /* or coloured finite differences of the full residual (the DM supplies the colouring) */
-  if (J != P && !s->analytic) PetscCall(SNESComputeJacobianDefaultColor(snes, X, J, J, NULL));
+  if (!s->decoupled && !s->analytic) PetscCall(SNESComputeJacobianDefaultColor(snes, X, J, J, NULL));
   PetscFunctionReturn(0);
 }

@@ -94,31 +94,6 @@ static PetscErrorCode SetDefaultOption(const char name[], const char value[])
   PetscFunctionReturn(0);
 }
 
-/* The preconditioner of the coupled Newton step: the depletion is eliminated first (its block is
-   the identity minus upstream transport, which one Gauss-Seidel sweep nearly inverts), leaving a
-   Schur complement in temperature alone: the five-point heat equation with latent heat folded
-   into the heat capacity where cells melt (PETSc's "selfp" approximation).  That scalar
-   advection-diffusion operator gets one V-cycle of algebraic multigrid (hypre BoomerAMG).
-   Measured in DEVELOPERS.md. */
-static PetscErrorCode SetSchurPreconditioner(PC pc)
-{
-  const PetscInt depletion[] = {1}, temperature[] = {0};
-
-  PetscFunctionBeginUser;
-  PetscCall(PCSetType(pc, PCFIELDSPLIT));
-  PetscCall(PCFieldSplitSetBlockSize(pc, 2));
-  PetscCall(PCFieldSplitSetFields(pc, "depletion", 1, depletion, depletion));
-  PetscCall(PCFieldSplitSetFields(pc, "temperature", 1, temperature, temperature));
-  PetscCall(PCFieldSplitSetType(pc, PC_COMPOSITE_SCHUR));
-  PetscCall(PCFieldSplitSetSchurFactType(pc, PC_FIELDSPLIT_SCHUR_FACT_FULL));
-  PetscCall(PCFieldSplitSetSchurPre(pc, PC_FIELDSPLIT_SCHUR_PRE_SELFP, NULL));
-  PetscCall(SetDefaultOption("-fieldsplit_depletion_ksp_type", "preonly"));
-  PetscCall(SetDefaultOption("-fieldsplit_depletion_pc_type", "sor"));
-  PetscCall(SetDefaultOption("-fieldsplit_temperature_ksp_type", "preonly"));
-  PetscCall(SetDefaultOption("-fieldsplit_temperature_pc_type", "hypre"));
-  PetscFunctionReturn(0);
-}
-
 PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
 {
   CFSteady      s;
@@ -217,14 +192,15 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
     }
   } else {
     PetscCall(DMCreateMatrix(s->da, &s->A));
-    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
-    PetscCall(DMCreateMatrix(s->da, &s->P));
-    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_FALSE));
-    PetscCall(SNESSetJacobian(s->snes, s->A, s->P, CFSteadyFormJacobian, s));
+    PetscCall(SNESSetJacobian(s->snes, s->A, s->A, CFSteadyFormJacobian, s));
     PetscCall(KSPSetType(ksp, KSPGMRES));
     PetscCall(KSPGMRESSetRestart(ksp, 100));
     PetscCall(KSPSetTolerances(ksp, 1e-8, PETSC_DEFAULT, PETSC_DEFAULT, 200));
-    PetscCall(SetSchurPreconditioner(pc));
+    PetscCall(CFSchurCreate(s, &s->schur));
+    PetscCall(PCSetType(pc, PCSHELL));
+    PetscCall(PCShellSetContext(pc, s->schur));
+    PetscCall(PCShellSetApply(pc, CFSchurApply));
+    PetscCall(PCShellSetName(pc, "depletion eliminated upstream, Schur complement in temperature by BoomerAMG (schur.c)"));
   }
   PetscCall(SNESSetFromOptions(s->snes));
   *out = s;
@@ -238,6 +214,7 @@ PetscErrorCode CFSteadyDestroy(CFSteady *ps)
   PetscFunctionBeginUser;
   if (!s) PetscFunctionReturn(0);
   PetscCall(SNESDestroy(&s->snes));
+  PetscCall(CFSchurDestroy(&s->schur));
   PetscCall(MatDestroy(&s->P));
   PetscCall(MatDestroy(&s->A));
   PetscCall(VecDestroy(&s->X));

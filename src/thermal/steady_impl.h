@@ -61,13 +61,17 @@ typedef struct {
   void           *kctx, *sctx;
 } CFResidualCtx;
 
+/* The preconditioner of the coupled Newton step (schur.c). */
+typedef struct _p_CFSchur *CFSchur;
+
 struct _p_CFSteady {
   MPI_Comm       comm;
   CFConfig       cfg;
   DM             da, da1; /* dof 2 (T, F) and dof 1 with the same layout */
   SNES           snes;
   Vec            X;
-  Mat            A, P; /* Jacobian and its first-order five-point approximation */
+  Mat            A, P; /* Jacobian; P: its first-order approximation, for picard only */
+  CFSchur        schur;
   PetscBool      use_coloring;
   PetscBool      analytic;  /* the operator is the analytic Jacobian (else coloured differences) */
   PetscBool      decoupled; /* outer (Picard) iterations: no temperature-depletion coupling in the Jacobian */
@@ -106,6 +110,15 @@ void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCe
 /* The Jacobian into J (analytic, or by coloured differences), its first-order five-point
    approximation into P (jacobian.c). */
 PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ctx);
+/* The rows of the five-point approximation (jacobian.c), scaled as the residual. */
+void CFSteadyApproximateEnergyRow(const CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscInt i, PetscInt j, CFJacRow *r);
+void CFSteadyDepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal Feq, PetscReal dFeq, PetscBool decoupled, CFJacRow *r);
+/* The Schur-complement preconditioner: create, destroy, rebuild for the local state x (owned
+   cells' equilibrium melt in s->work_F), and apply as a PCSHELL. */
+PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *c);
+PetscErrorCode CFSchurDestroy(CFSchur *c);
+PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x);
+PetscErrorCode CFSchurApply(PC pc, Vec r, Vec z);
 /* Fill fine's solution by interpolating coarse's temperature, then the depletion sweep. */
 PetscErrorCode CFSteadyInterpolateFrom(CFSteady fine, CFSteady coarse);
 /* Equilibrium melt fraction of the owned cells for the temperatures of the local array x, into

@@ -1,0 +1,168 @@
+/* The preconditioner of the coupled Newton step (a PCSHELL): the depletion is eliminated first.
+   Its linearised rows are the identity minus upstream transport (or minus dF_eq/dT where the
+   cell melts), lower triangular in upstream order, so one sweep bottom-up and axis-outward
+   solves them exactly (on each rank; across ranks the upstream values are dropped).  What is
+   left is a Schur complement in temperature alone, approximated by the five-point, first-order
+   heat equation in which latent heat enters the heat capacity of melting cells,
+     S = P_TT - P_TF diag(P_FF)^-1 P_FT,
+   a scalar advection-diffusion operator that gets one V-cycle of algebraic multigrid (hypre
+   BoomerAMG, options prefix -steady_temperature_).  Then the depletion again from the new
+   temperature.  Measured in DEVELOPERS.md. */
+#include "steady_impl.h"
+
+struct _p_CFSchur {
+  DM         da1;          /* scalar layout of the temperature */
+  Mat        S;            /* the Schur complement approximation */
+  PC         amg;
+  Vec        b, t;         /* right side and solution of the temperature step */
+  PetscInt   xm, ym, n;    /* owned block */
+  PetscReal *fw, *tf, *ft; /* per owned cell: depletion row on F (5 slots), energy row on F (5 slots), depletion row on T */
+};
+
+/* Slot of neighbour (ci, cj) of cell (i, j): the cell, left, right, above, below. */
+static inline PetscInt Slot(PetscInt i, PetscInt j, PetscInt ci, PetscInt cj) { return ci < i ? 1 : ci > i ? 2 : cj < j ? 3 : cj > j ? 4 : 0; }
+
+/* Owned index of slot k of owned cell n at (li, lj) within the block, or -1 off the block. */
+static inline PetscInt Neighbour(const CFSchur c, PetscInt n, PetscInt li, PetscInt lj, PetscInt k)
+{
+  switch (k) {
+  case 0: return n;
+  case 1: return li > 0 ? n - 1 : -1;
+  case 2: return li + 1 < c->xm ? n + 1 : -1;
+  case 3: return lj > 0 ? n - c->xm : -1;
+  default: return lj + 1 < c->ym ? n + c->xm : -1;
+  }
+}
+
+PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
+{
+  CFSchur c;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscNew(&c));
+  c->xm  = s->owned.xm;
+  c->ym  = s->owned.ym;
+  c->n   = s->nowned;
+  c->da1 = s->da1;
+  PetscCall(PetscMalloc3(5 * c->n, &c->fw, 5 * c->n, &c->tf, c->n, &c->ft));
+  PetscCall(DMCreateMatrix(c->da1, &c->S));
+  PetscCall(DMCreateGlobalVector(c->da1, &c->b));
+  PetscCall(VecDuplicate(c->b, &c->t));
+  PetscCall(PCCreate(s->comm, &c->amg));
+  PetscCall(PCSetType(c->amg, PCHYPRE));
+  PetscCall(PCSetOptionsPrefix(c->amg, "steady_temperature_"));
+  PetscCall(PCSetFromOptions(c->amg));
+  *out = c;
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSchurDestroy(CFSchur *pc)
+{
+  CFSchur c = *pc;
+
+  PetscFunctionBeginUser;
+  if (!c) PetscFunctionReturn(0);
+  PetscCall(PCDestroy(&c->amg));
+  PetscCall(VecDestroy(&c->b));
+  PetscCall(VecDestroy(&c->t));
+  PetscCall(MatDestroy(&c->S));
+  PetscCall(PetscFree3(c->fw, c->tf, c->ft));
+  PetscCall(PetscFree(*pc));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x)
+{
+  CFSchur  c = s->schur;
+  PetscInt n = 0;
+
+  PetscFunctionBeginUser;
+  /* the depletion rows first: the temperature rows need their neighbours' */
+  for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
+    for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
+      CFJacRow r = {.n = 0};
+      CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], PETSC_FALSE, &r);
+      for (PetscInt k = 0; k < 5; k++) c->fw[5 * n + k] = 0.0;
+      c->ft[n] = 0.0;
+      for (PetscInt e = 0; e < r.n; e++) {
+        if (r.col[e].c == 1) c->fw[5 * n + Slot(i, j, r.col[e].i, r.col[e].j)] = r.v[e];
+        else c->ft[n] = r.v[e];
+      }
+    }
+  PetscCall(MatZeroEntries(c->S));
+  n = 0;
+  for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
+    for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
+      CFJacRow   r = {.n = 0}, t = {.n = 0};
+      MatStencil row = {.i = i, .j = j, .k = 0, .c = 0};
+      CFSteadyApproximateEnergyRow(s, info, x, i, j, &r);
+      for (PetscInt k = 0; k < 5; k++) c->tf[5 * n + k] = 0.0;
+      for (PetscInt e = 0; e < r.n; e++) {
+        const PetscInt k = Slot(i, j, r.col[e].i, r.col[e].j);
+        if (r.col[e].c == 0) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, r.v[e]);
+        else {
+          /* dF_m = -(ft_m / fw_m) dT_m where m melts: folded into the temperature column */
+          const PetscInt m = Neighbour(c, n, i - info->xs, j - info->ys, k);
+          c->tf[5 * n + k] = r.v[e];
+          if (m >= 0) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, -r.v[e] * c->ft[m] / c->fw[5 * m]);
+        }
+      }
+      PetscCall(MatSetValuesStencil(c->S, 1, &row, t.n, t.col, t.v, INSERT_VALUES));
+    }
+  PetscCall(MatAssemblyBegin(c->S, MAT_FINAL_ASSEMBLY));
+  PetscCall(MatAssemblyEnd(c->S, MAT_FINAL_ASSEMBLY));
+  PetscCall(PCSetOperators(c->amg, c->S, c->S));
+  PetscCall(PCSetUp(c->amg));
+  PetscFunctionReturn(0);
+}
+
+/* y_F from fw y_F = rhs (rhs_n = r_F[n] - ft_n t_n), in upstream order: rows bottom-up, each from
+   the axis outward; every neighbour value read is either already final or (downstream) carries a
+   zero coefficient. */
+static void Sweep(const CFSchur c, const PetscScalar *r, const PetscScalar *t, PetscScalar *z)
+{
+  for (PetscInt n = 0; n < c->n; n++) z[2 * n + 1] = 0.0;
+  for (PetscInt lj = c->ym - 1; lj >= 0; lj--)
+    for (PetscInt li = 0; li < c->xm; li++) {
+      const PetscInt n   = lj * c->xm + li;
+      PetscScalar    acc = r[2 * n + 1] - (t ? c->ft[n] * t[n] : 0.0);
+      for (PetscInt k = 1; k < 5; k++) {
+        const PetscInt m = Neighbour(c, n, li, lj, k);
+        if (m >= 0) acc -= c->fw[5 * n + k] * z[2 * m + 1];
+      }
+      z[2 * n + 1] = acc / c->fw[5 * n];
+    }
+}
+
+PetscErrorCode CFSchurApply(PC pc, Vec r, Vec z)
+{
+  CFSchur            c;
+  const PetscScalar *rr, *tt;
+  PetscScalar       *zz, *bb;
+
+  PetscFunctionBeginUser;
+  PetscCall(PCShellGetContext(pc, &c));
+  PetscCall(VecGetArrayRead(r, &rr));
+  PetscCall(VecGetArray(z, &zz));
+  /* depletion with no temperature change, then the temperature's right side without it */
+  Sweep(c, rr, NULL, zz);
+  PetscCall(VecGetArray(c->b, &bb));
+  for (PetscInt lj = 0, n = 0; lj < c->ym; lj++)
+    for (PetscInt li = 0; li < c->xm; li++, n++) {
+      PetscScalar acc = rr[2 * n];
+      for (PetscInt k = 0; k < 5; k++) {
+        const PetscInt m = Neighbour(c, n, li, lj, k);
+        if (m >= 0) acc -= c->tf[5 * n + k] * zz[2 * m + 1];
+      }
+      bb[n] = acc;
+    }
+  PetscCall(VecRestoreArray(c->b, &bb));
+  PetscCall(PCApply(c->amg, c->b, c->t));
+  PetscCall(VecGetArrayRead(c->t, &tt));
+  for (PetscInt n = 0; n < c->n; n++) zz[2 * n] = tt[n];
+  Sweep(c, rr, tt, zz);
+  PetscCall(VecRestoreArrayRead(c->t, &tt));
+  PetscCall(VecRestoreArray(z, &zz));
+  PetscCall(VecRestoreArrayRead(r, &rr));
+  PetscFunctionReturn(0);
+}
