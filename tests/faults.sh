@@ -74,7 +74,8 @@ else echo "     (the run finished before the signal arrived)"; fi
 if [ -n "$why" ]; then fail sigterm "$why"; else pass sigterm; fi
 
 # --- lock: a second run on a directory in use is refused; neither output is damaged -------------
-"$CRUSTFORGE" run "$default" -grid_spacing 2 -grid_width 200 -grid_depth 100 -output_figures false -output_dir "$tmp/shared" >"$tmp/first.out" 2>"$tmp/first.err" &
+# the first run must outlast the second's start: 400 x 200 cells, a few seconds
+"$CRUSTFORGE" run "$default" -grid_spacing 0.5 -grid_width 200 -grid_depth 100 -output_figures false -output_dir "$tmp/shared" >"$tmp/first.out" 2>"$tmp/first.err" &
 pid=$!
 for _ in $(seq 600); do [ -e "$tmp/shared/.lock" ] && break; sleep 0.05; done
 "$CRUSTFORGE" run "$default" "${tiny[@]}" -output_dir "$tmp/shared" -output_overwrite true >"$tmp/second.out" 2>"$tmp/second.err"
@@ -84,7 +85,7 @@ rc1=$?
 why=""
 [ $rc2 -eq 2 ] && one_line "$tmp/second.err" "is in use by another crustforge run (process $pid" || why+="second: exit $rc2: $(cat "$tmp/second.err"); "
 [ $rc1 -eq 0 ] && complete "$tmp/shared/run.h5" || why+="first: exit $rc1: $(cat "$tmp/first.err"); "
-grep -q 'grid cells: 100 x 50' "$tmp/first.out" && h5dump -d /x -H "$tmp/shared/run.h5" | grep -q '( 100 )' || why+="the first run's file is not its own; "
+grep -q 'grid cells: 400 x 200' "$tmp/first.out" && h5dump -d /x -H "$tmp/shared/run.h5" | grep -q '( 400 )' || why+="the first run's file is not its own; "
 [ ! -e "$tmp/shared/.lock" ] || why+="lock left behind; "
 if [ -n "$why" ]; then fail lock "$why"; else pass lock; fi
 # a lock file whose process is gone (killed) is taken over

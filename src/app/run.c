@@ -6,6 +6,18 @@
 #include <crustforge/steady.h>
 #include <crustforge/units.h>
 
+/* Push the log stage of this name, registered on first use (a sweep pushes it once per case). */
+static PetscErrorCode PushStage(const char name[])
+{
+  PetscLogStage stage = -1;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscLogStageGetId(name, &stage));
+  if (stage < 0) PetscCall(PetscLogStageRegister(name, &stage));
+  PetscCall(PetscLogStagePush(stage));
+  PetscFunctionReturn(0);
+}
+
 /* Every field of the run, as dof-1 vectors of the solver's scalar DMDA. */
 static PetscErrorCode ComputeFields(CFSteady s, Vec v[CF_NFIELDS])
 {
@@ -60,6 +72,7 @@ PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport
   CFPostSettings  set;
 
   PetscFunctionBeginUser;
+  PetscCall(PushStage("Output"));
   PetscCall(ComputeFields(s, v));
   PetscCall(CFSteadyGetScalarDM(s, &da));
   if (write) {
@@ -68,6 +81,8 @@ PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport
     PetscCall(WriteRunFile(comm, cfg, da, v, rep, H, Hs));
     PetscCall(PetscPrintf(comm, "wrote %s/run.h5 and run.xdmf\n", cfg->output_dir));
   }
+  PetscCall(PetscLogStagePop());
+  PetscCall(PushStage("Post-processing"));
   PetscCall(CFRunDataCreate(comm, cfg, &rd));
   for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(CFRunDataSetField(comm, &rd, (CFFieldId)f, da, v[f]));
   rd.nonlinear_iterations = rep->nonlinear_iterations;
@@ -79,6 +94,7 @@ PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport
   if (write) PetscCall(CFPostRun(comm, &rd, &set, cfg->output_dir, cfg->output_figures));
   PetscCall(CFRunDataDestroy(&rd));
   for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(VecDestroy(&v[f]));
+  PetscCall(PetscLogStagePop());
   PetscFunctionReturn(0);
 }
 
@@ -86,21 +102,16 @@ PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport
 static PetscErrorCode SolveAndWrite(MPI_Comm comm, CFSteady s)
 {
   CFSolveReport rep;
-  PetscLogStage stage_solve, stage_output;
   PetscInt      levels, coarse_its;
 
   PetscFunctionBeginUser;
-  PetscCall(PetscLogStageRegister("Steady solve", &stage_solve));
-  PetscCall(PetscLogStageRegister("Output and post-processing", &stage_output));
-  PetscCall(PetscLogStagePush(stage_solve));
+  PetscCall(PushStage("Steady solve"));
   PetscCall(CFSteadySequenceInitialGuess(s, &levels, &coarse_its));
   if (levels) PetscCall(PetscPrintf(comm, "initial guess: %" PetscInt_FMT " coarser grids, %" PetscInt_FMT " Newton iterations on them\n", levels, coarse_its));
   PetscCall(CFSteadySolve(s, &rep));
   PetscCall(PetscLogStagePop());
   PetscCall(PetscPrintf(comm, "steady solve: %" PetscInt_FMT " Newton iterations, %" PetscInt_FMT " linear iterations, residual %.3e K -> %.3e K (%s), %.2f s\n", rep.nonlinear_iterations, rep.linear_iterations, (double)rep.initial_residual, (double)rep.final_residual, SNESConvergedReasons[rep.reason], (double)rep.seconds));
-  PetscCall(PetscLogStagePush(stage_output));
   PetscCall(CFRunSteadyResults(comm, s, &rep, PETSC_TRUE, NULL));
-  PetscCall(PetscLogStagePop());
   PetscFunctionReturn(0);
 }
 
@@ -112,7 +123,9 @@ PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
   PetscFunctionBeginUser;
   PetscCall(CFConfigView(cfg, PETSC_VIEWER_STDOUT_(comm)));
   PetscCall(CFOutputDirPrepare(comm, cfg));
+  PetscCall(PushStage("Flow and solver set-up"));
   PetscCall(CFSteadyCreate(comm, cfg, &s));
+  PetscCall(PetscLogStagePop());
   /* a failed solve or write still frees the solver and the directory lock before reporting */
   ierr = SolveAndWrite(comm, s);
   PetscCall(CFSteadyDestroy(&s));

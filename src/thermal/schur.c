@@ -11,7 +11,7 @@
 #include "steady_impl.h"
 
 struct _p_CFSchur {
-  DM         da1;          /* scalar layout of the temperature */
+  DM         da1;          /* scalar layout of the temperature, five-point stencil */
   Mat        S;            /* the Schur complement approximation */
   PC         amg;
   Vec        b, t;         /* right side and solution of the temperature step */
@@ -43,7 +43,15 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
   c->xm  = s->owned.xm;
   c->ym  = s->owned.ym;
   c->n   = s->nowned;
-  c->da1 = s->da1;
+  {
+    /* the solver's layout with a five-point stencil: the matrix holds just the pattern it needs */
+    const PetscInt *lx, *ly;
+    PetscInt        px, py;
+    PetscCall(DMDAGetInfo(s->da, NULL, NULL, NULL, NULL, &px, &py, NULL, NULL, NULL, NULL, NULL, NULL, NULL));
+    PetscCall(DMDAGetOwnershipRanges(s->da, &lx, &ly, NULL));
+    PetscCall(DMDACreate2d(s->comm, DM_BOUNDARY_NONE, DM_BOUNDARY_NONE, DMDA_STENCIL_STAR, s->cfg.nx, s->cfg.nz, px, py, 1, 1, lx, ly, &c->da1));
+    PetscCall(DMSetUp(c->da1));
+  }
   PetscCall(PetscMalloc3(5 * c->n, &c->fw, 5 * c->n, &c->tf, c->n, &c->ft));
   PetscCall(DMCreateMatrix(c->da1, &c->S));
   PetscCall(DMCreateGlobalVector(c->da1, &c->b));
@@ -66,6 +74,7 @@ PetscErrorCode CFSchurDestroy(CFSchur *pc)
   PetscCall(VecDestroy(&c->b));
   PetscCall(VecDestroy(&c->t));
   PetscCall(MatDestroy(&c->S));
+  PetscCall(DMDestroy(&c->da1));
   PetscCall(PetscFree3(c->fw, c->tf, c->ft));
   PetscCall(PetscFree(*pc));
   PetscFunctionReturn(0);
@@ -89,8 +98,7 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
         else c->ft[n] = r.v[e];
       }
     }
-  PetscCall(MatZeroEntries(c->S));
-  n = 0;
+  n = 0; /* every row inserts its whole pattern: no zeroing needed */
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
       CFJacRow   r = {.n = 0}, t = {.n = 0};

@@ -191,7 +191,12 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
       PetscCall(SetDefaultOption("-sub_pc_type", "lu"));
     }
   } else {
+    /* the analytic Jacobian inserts the same entries every time (zeros included), so its
+       pattern can form at the first assembly: preallocation only, no zeros inserted up front
+       (the coloured differences need the full pattern before) */
+    if (s->analytic) PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
     PetscCall(DMCreateMatrix(s->da, &s->A));
+    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_FALSE));
     PetscCall(SNESSetJacobian(s->snes, s->A, s->A, CFSteadyFormJacobian, s));
     PetscCall(KSPSetType(ksp, KSPGMRES));
     PetscCall(KSPGMRESSetRestart(ksp, 100));

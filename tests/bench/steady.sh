@@ -1,11 +1,12 @@
 #!/bin/sh
 # Benchmark of the steady solve on the default scenario: wall time, Newton and linear
 # iterations, peak memory, time per cell and per log stage, at several spacings, on 1 and 2 MPI
-# ranks and with 1 and 2 OpenMP threads for the melting model.  Prints figures; asserts nothing.
-#   sh tests/bench/steady.sh [BUILD_DIR] [SPACINGS_KM]      e.g. sh tests/bench/steady.sh build "2 1 0.5 0.25"
+# ranks and with 1 and 2 OpenMP threads for the melting model, and a 15-rate sweep at 1 km on 2
+# ranks (tests/bench/sweep15.yaml).  Prints figures; asserts nothing.
+#   sh tests/bench/steady.sh [BUILD_DIR] [SPACINGS_KM]      (default: build "2 1 0.5 0.25")
 set -e
 BUILD=${1:-build}
-SPACINGS=${2:-"2 1 0.5"}
+SPACINGS=${2:-"2 1 0.5 0.25"}
 CF=$BUILD/src/crustforge
 SCEN=$(dirname "$0")/../../inputs/default.yaml
 TMP=$(mktemp -d)
@@ -34,3 +35,9 @@ echo "crustforge steady benchmark, $(nproc) cores, $(date -u +%Y-%m-%dT%H:%MZ)"
 for h in $SPACINGS; do run "serial" 1 1 "$h"; done
 run "2 ranks" 2 1 1
 run "2 threads" 1 2 1
+# the 15-rate sweep at 1 km on 2 ranks (2 groups of 1 rank)
+SWEEP=$(dirname "$0")/sweep15.yaml
+OMP_NUM_THREADS=1 /usr/bin/time -v mpiexec -n 2 --bind-to none "$CF" sweep "$SWEEP" -output_dir "$TMP/sweep" -sweep_ranks_per_case 1 >"$TMP/sweep.log" 2>"$TMP/sweep.time" || { tail -n 5 "$TMP/sweep.log"; echo "sweep failed"; }
+wall=$(grep "Elapsed (wall clock)" "$TMP/sweep.time" | awk '{print $NF}')
+its=$(awk -F, 'NR==1{for(i=1;i<=NF;i++) if($i=="nonlinear_iterations") c=i} NR>1&&c{s+=$c; n++} END{printf "%d cases, %d Newton iterations", n, s}' "$TMP/sweep/sweep.csv" 2>/dev/null)
+printf "%-14s h=%-5s 15 rates ranks=2 wall=%s (%s)\n" "sweep" 1 "$wall" "$its"
