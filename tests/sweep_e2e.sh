@@ -3,9 +3,9 @@
 #  ranks   the small sweep (tests/sweep/small.yaml, continuation on) gives the same sweep.csv
 #          numbers on 1 rank and on 2 ranks in 2 groups, and each row equals a single
 #          `crustforge run` of that case.  Continuation changes only the initial guess, so the
-#          answers agree to the solver's tolerance (SNES rtol 1e-6 of the initial residual,
-#          quadratic convergence: measured differences below 1e-9 relative): compared to 1e-8
-#          relative (1e-9 km absolute for zero crust).  nonlinear_iterations and solve_seconds
+#          answers agree to the solver's tolerance (an RMS residual of 1e-6 K per unknown:
+#          measured differences up to 4e-8 relative): compared to 1e-6 relative (1e-9 km
+#          absolute for zero crust).  nonlinear_iterations and solve_seconds
 #          depend on the start and the machine and are not compared; regime_mean_melt_fraction
 #          and melting_region_area_km2 / _width_km count cells a threshold classifies as
 #          melting (postprocess, CF_POST_MELTING_TOL), which flips for an edge cell with
@@ -31,7 +31,7 @@ ok() { echo "ok   $*"; }
 np1() { OMPI_MCA_ess_singleton_isolated=1 OMPI_MCA_pml=ob1 OMPI_MCA_btl=self "$CRUSTFORGE" "$@"; }
 
 # same A B: the physical columns of two sweep.csv (or a sweep.csv row set and summary.csv rows)
-# agree to 1e-8 relative; prints the worst difference.
+# agree to 1e-6 relative; prints the worst difference.
 same() {
   /usr/bin/python3 - "$1" "$2" <<'PY'
 import csv, math, sys
@@ -47,7 +47,7 @@ for x, y in zip(a, b):
         d = abs(u - v)
         # cell classification (see above): within one 10 km cell
         tol = {"regime_mean_melt_fraction": 1e-3 * abs(u), "melting_region_area_km2": 100.0, "melting_region_width_km": 10.0}
-        if not d <= tol.get(k, max(1e-8 * max(abs(u), abs(v)), 1e-9)): print("differ:", k, u, v); sys.exit(1)
+        if not d <= tol.get(k, max(1e-6 * max(abs(u), abs(v)), 1e-9)): print("differ:", k, u, v); sys.exit(1)
         if k in tol: continue
         worst = max(worst, d / max(abs(u), 1e-300))
 print("worst relative difference %.2e" % worst)

@@ -1,5 +1,6 @@
 /* crustforge: steady and transient thermal and melt structure beneath a spreading ridge. */
 #include <signal.h>
+#include <stdlib.h>
 #include <string.h>
 #include <crustforge/app.h>
 #include <crustforge/config.h>
@@ -106,6 +107,14 @@ int main(int argc, char **argv)
   /* A file-size limit (ulimit -f) then makes write() fail with EFBIG, reported, instead of
      killing the run without a word. */
   signal(SIGXFSZ, SIG_IGN);
+  /* Started without mpiexec, an Open MPI process is a singleton that launches a helper daemon,
+     about 0.4 s of a serial run here, needed only to spawn processes, which crustforge never
+     does: unless the user says otherwise, an isolated singleton talking only to itself. */
+  if (!getenv("OMPI_COMM_WORLD_SIZE") && !getenv("PMIX_RANK")) {
+    setenv("OMPI_MCA_ess_singleton_isolated", "1", 0);
+    setenv("OMPI_MCA_pml", "ob1", 0);
+    setenv("OMPI_MCA_btl", "self", 0);
+  }
   ierr = PetscInitialize(&argc, &argv, NULL, help);
   if (ierr) return CF_EXIT_INTERNAL;
   if (CFStopHandlersInstall()) return CF_EXIT_INTERNAL; /* after PETSc's own */

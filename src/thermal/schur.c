@@ -16,6 +16,9 @@ struct _p_CFSchur {
   PC         amg;
   Vec        b, t;         /* right side and solution of the temperature step */
   PetscInt   xm, ym, n;    /* owned block */
+  PetscBool  reuse;        /* keep the multigrid hierarchy while GMRES stays fast */
+  PetscBool  built;
+  PetscInt   its_built;    /* GMRES iterations of the first solve with the hierarchy, -1 unknown */
   PetscReal *fw, *tf, *ft; /* per owned cell: depletion row on F (5 slots), energy row on F (5 slots), depletion row on T */
 };
 
@@ -60,6 +63,10 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
   PetscCall(PCSetType(c->amg, PCHYPRE));
   PetscCall(PCSetOptionsPrefix(c->amg, "steady_temperature_"));
   PetscCall(PCSetFromOptions(c->amg));
+  c->reuse = PETSC_TRUE;
+  PetscOptionsBegin(s->comm, "steady_", "Steady coupled solver", "crustforge");
+  PetscCall(PetscOptionsBool("-amg_reuse", "keep the BoomerAMG hierarchy of the temperature step across Newton steps until GMRES needs twice the iterations it did with it fresh", NULL, c->reuse, &c->reuse, NULL));
+  PetscOptionsEnd();
   *out = c;
   PetscFunctionReturn(0);
 }
@@ -119,8 +126,32 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
     }
   PetscCall(MatAssemblyBegin(c->S, MAT_FINAL_ASSEMBLY));
   PetscCall(MatAssemblyEnd(c->S, MAT_FINAL_ASSEMBLY));
-  PetscCall(PCSetOperators(c->amg, c->S, c->S));
-  PetscCall(PCSetUp(c->amg));
+  /* Building the hierarchy costs as much as several V-cycles, and the operator changes little
+     between Newton steps (the melting region moves by a cell or so): rebuild only for a new
+     solve, or once GMRES needs twice the iterations it did with a fresh one (measured in
+     DEVELOPERS.md). */
+  {
+    PetscInt its = 0;
+    KSP      ksp;
+    PetscCall(SNESGetKSP(s->snes, &ksp));
+    if (c->built) PetscCall(KSPGetIterationNumber(ksp, &its));
+    if (c->built && c->its_built < 0) c->its_built = its;
+    if (!c->reuse || !c->built || its > 2 * PetscMax(c->its_built, 5)) {
+      PetscCall(PCSetReusePreconditioner(c->amg, PETSC_FALSE));
+      PetscCall(PCSetOperators(c->amg, c->S, c->S));
+      PetscCall(PCSetUp(c->amg));
+      PetscCall(PCSetReusePreconditioner(c->amg, c->reuse));
+      c->built     = PETSC_TRUE;
+      c->its_built = -1;
+    }
+  }
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSchurReset(CFSchur c)
+{
+  PetscFunctionBeginUser;
+  if (c) c->built = PETSC_FALSE;
   PetscFunctionReturn(0);
 }
 

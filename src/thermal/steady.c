@@ -158,7 +158,9 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
   PetscCall(SNESCreate(comm, &s->snes));
   PetscCall(SNESSetDM(s->snes, s->da));
   PetscCall(DMDASNESSetFunctionLocal(s->da, INSERT_VALUES, (DMDASNESFunction)FormFunctionLocal, s));
-  PetscCall(SNESSetTolerances(s->snes, 1e-6, 1e-9, 0.0, 50, PETSC_DEFAULT));
+  /* converged when the root-mean-square residual is 1e-6 K per unknown (a 2-norm that does not
+     tighten as the grid is refined), or 1e-9 of the start */
+  PetscCall(SNESSetTolerances(s->snes, 1e-6 * PetscSqrtReal(2.0 * cfg->nx * cfg->nz), 1e-9, 0.0, 50, PETSC_DEFAULT));
   {
     const char *const kinds[] = {"analytic", "split", "coloring", "picard", "CFSteadyJacobian", "", NULL};
     PetscEnum         kind    = 0;
@@ -277,6 +279,7 @@ PetscErrorCode CFSteadySetInitialGuess(CFSteady s)
 static PetscErrorCode SolveOnceWith(CFSteady s, Vec Fv, CFSolveReport *r)
 {
   PetscFunctionBeginUser;
+  PetscCall(CFSchurReset(s->schur));
   PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
   PetscCall(VecNorm(Fv, NORM_2, &r->initial_residual));
   PetscCall(SNESSolve(s->snes, NULL, s->X));

@@ -119,6 +119,8 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *c);
 PetscErrorCode CFSchurDestroy(CFSchur *c);
 PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x);
 PetscErrorCode CFSchurApply(PC pc, Vec r, Vec z);
+/* A new solve: the next assembly rebuilds the multigrid hierarchy. */
+PetscErrorCode CFSchurReset(CFSchur c);
 /* Fill fine's solution by interpolating coarse's temperature, then the depletion sweep. */
 PetscErrorCode CFSteadyInterpolateFrom(CFSteady fine, CFSteady coarse);
 /* Equilibrium melt fraction of the owned cells for the temperatures of the local array x, into

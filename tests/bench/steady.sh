@@ -34,6 +34,8 @@ run() { # label ranks threads spacing
 echo "crustforge steady benchmark, $(nproc) cores, $(date -u +%Y-%m-%dT%H:%MZ)"
 for h in $SPACINGS; do run "serial" 1 1 "$h"; done
 run "2 ranks" 2 1 1
+finest=$(echo $SPACINGS | awk '{print $NF}')
+[ "$finest" = 1 ] || run "2 ranks" 2 1 "$finest"
 run "2 threads" 1 2 1
 # the 15-rate sweep at 1 km on 2 ranks (2 groups of 1 rank)
 SWEEP=$(dirname "$0")/sweep15.yaml
