@@ -130,10 +130,12 @@ static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCe
       MatStencil row = {.i = i, .j = j, .k = 0, .c = 0};
       CFJacRow   r   = {.n = 0};
       EnergyRow(s, info, x, i, j, exact, &r);
+      CFJacRowSort(&r);
       PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
       r.n   = 0;
       row.c = 1;
       CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->decoupled && !exact), &r);
+      CFJacRowSort(&r);
       PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
     }
   PetscCall(MatAssemblyBegin(M, MAT_FINAL_ASSEMBLY));

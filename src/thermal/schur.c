@@ -122,6 +122,7 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
           if (m >= 0) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, -r.v[e] * c->ft[m] / c->fw[5 * m]);
         }
       }
+      CFJacRowSort(&t);
       PetscCall(MatSetValuesStencil(c->S, 1, &row, t.n, t.col, t.v, INSERT_VALUES));
     }
   PetscCall(MatAssemblyBegin(c->S, MAT_FINAL_ASSEMBLY));
