@@ -161,16 +161,19 @@ PetscErrorCode CFSchurReset(CFSchur c)
    zero coefficient. */
 static void Sweep(const CFSchur c, const PetscScalar *r, const PetscScalar *t, PetscScalar *z)
 {
+  const PetscInt xm = c->xm, ym = c->ym;
+
   for (PetscInt n = 0; n < c->n; n++) z[2 * n + 1] = 0.0;
-  for (PetscInt lj = c->ym - 1; lj >= 0; lj--)
-    for (PetscInt li = 0; li < c->xm; li++) {
-      const PetscInt n   = lj * c->xm + li;
-      PetscScalar    acc = r[2 * n + 1] - (t ? c->ft[n] * t[n] : 0.0);
-      for (PetscInt k = 1; k < 5; k++) {
-        const PetscInt m = Neighbour(c, n, li, lj, k);
-        if (m >= 0) acc -= c->fw[5 * n + k] * z[2 * m + 1];
-      }
-      z[2 * n + 1] = acc / c->fw[5 * n];
+  for (PetscInt lj = ym - 1; lj >= 0; lj--)
+    for (PetscInt li = 0; li < xm; li++) {
+      const PetscInt   n   = lj * xm + li;
+      const PetscReal *w   = &c->fw[5 * n];
+      PetscScalar      acc = r[2 * n + 1] - (t ? c->ft[n] * t[n] : 0.0);
+      if (li > 0) acc -= w[1] * z[2 * (n - 1) + 1];
+      if (li + 1 < xm) acc -= w[2] * z[2 * (n + 1) + 1];
+      if (lj > 0) acc -= w[3] * z[2 * (n - xm) + 1];
+      if (lj + 1 < ym) acc -= w[4] * z[2 * (n + xm) + 1];
+      z[2 * n + 1] = acc / w[0];
     }
 }
 
@@ -189,11 +192,12 @@ PetscErrorCode CFSchurApply(PC pc, Vec r, Vec z)
   PetscCall(VecGetArray(c->b, &bb));
   for (PetscInt lj = 0, n = 0; lj < c->ym; lj++)
     for (PetscInt li = 0; li < c->xm; li++, n++) {
-      PetscScalar acc = rr[2 * n];
-      for (PetscInt k = 0; k < 5; k++) {
-        const PetscInt m = Neighbour(c, n, li, lj, k);
-        if (m >= 0) acc -= c->tf[5 * n + k] * zz[2 * m + 1];
-      }
+      const PetscReal *w   = &c->tf[5 * n];
+      PetscScalar      acc = rr[2 * n] - w[0] * zz[2 * n + 1];
+      if (li > 0) acc -= w[1] * zz[2 * (n - 1) + 1];
+      if (li + 1 < c->xm) acc -= w[2] * zz[2 * (n + 1) + 1];
+      if (lj > 0) acc -= w[3] * zz[2 * (n - c->xm) + 1];
+      if (lj + 1 < c->ym) acc -= w[4] * zz[2 * (n + c->xm) + 1];
       bb[n] = acc;
     }
   PetscCall(VecRestoreArray(c->b, &bb));
