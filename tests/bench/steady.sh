@@ -27,8 +27,9 @@ run() { # label ranks threads spacing
   its=$(grep "^steady solve:" "$log" | sed 's/steady solve: \([0-9]*\) Newton iterations, \([0-9]*\) linear.*/\1 \2/')
   cells=$(awk -v h="$h" 'BEGIN{printf "%d", (400/h)*(200/h)}')
   stages=$(awk -F: '/Summary of Stages/{f=1;next} /^ *[0-9]+: /&&f{split($3,a," "); gsub(/^ +| +$/,"",$2); gsub(/ /,"_",$2); printf "%s=%.2fs ", $2, a[1]} /Event Stage/{f=0}' "$log")
-  printf "%-14s h=%-5s cells=%-8s ranks=%s threads=%s wall=%-8s newton/linear=%-9s peakRSS=%s kB (%.0f B/cell) %s\n" \
-    "$label" "$h" "$cells" "$np" "$nt" "$wall" "$(echo $its | tr ' ' /)" "$rss" "$(awk -v r="$rss" -v c="$cells" 'BEGIN{print r*1024/c}')" "$stages"
+  secs=$(echo "$wall" | awk -F: '{s=0; for(i=1;i<=NF;i++) s=s*60+$i; print s}')
+  printf "%-14s h=%-5s cells=%-8s ranks=%s threads=%s wall=%-8s (%.1f us/cell) newton/linear=%-9s peakRSS=%s kB (%.0f B/cell) %s\n" \
+    "$label" "$h" "$cells" "$np" "$nt" "$wall" "$(awk -v s="$secs" -v c="$cells" 'BEGIN{print s*1e6/c}')" "$(echo $its | tr ' ' /)" "$rss" "$(awk -v r="$rss" -v c="$cells" 'BEGIN{print r*1024/c}')" "$stages"
 }
 
 echo "crustforge steady benchmark, $(nproc) cores, $(date -u +%Y-%m-%dT%H:%MZ)"
