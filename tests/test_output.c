@@ -52,7 +52,7 @@ static PetscBool Exists(const char *name)
 
 static void RemoveTmp(void)
 {
-  static const char *names[] = {"run.h5", "run.xdmf", "run.h5.tmp", "run.xdmf.tmp", "failed.h5", "failed.xdmf", "failed.h5.tmp", "failed.xdmf.tmp", "text.h5", "truncated.h5", "foreign.h5", "incomplete.h5"};
+  static const char *names[] = {"run.h5", "run.xdmf", "run.h5.tmp", "run.xdmf.tmp", "failed.h5", "failed.xdmf", "failed.h5.tmp", "failed.xdmf.tmp", "text.h5", "truncated.h5", "foreign.h5", "incomplete.h5", "flipped.h5", "header.h5"};
   PetscMPIInt        rank;
 
   MPI_Barrier(PETSC_COMM_WORLD);
@@ -425,8 +425,8 @@ static int WriteForeignHDF5(const char *name, PetscBool provenance)
   return H5Fclose(f) < 0 || rc ? -1 : 0;
 }
 
-/* Expect CFRunReaderOpen to fail with code, naming the file in its message. */
-static void ExpectRefused(const char *name, PetscErrorCode code)
+/* Expect CFRunReaderOpen to fail with code, naming the file and the cause in its message. */
+static void ExpectRefused(const char *name, PetscErrorCode code, const char *cause)
 {
   char           path[PETSC_MAX_PATH_LEN];
   CFRunReader    r = NULL;
@@ -442,9 +442,25 @@ static void ExpectRefused(const char *name, PetscErrorCode code)
   ck_assert_ptr_null(r);
   PetscErrorMessage(ierr, &text, &specific);
   ck_assert_msg(specific && strstr(specific, path) && !strchr(specific, '\n'), "%s: message '%s' does not name the file on one line", name, specific ? specific : "");
+  ck_assert_msg(strstr(specific, cause), "%s: message '%s' does not say '%s'", name, specific, cause);
 }
 
-/* Files the reader must refuse with the right PETSc error class (the module's contract). */
+/* Rank 0: a copy of src with the byte at offset flipped (bitwise NOT).  Returns 0 on success. */
+static int WriteFlipped(const char *name, const char *src, long offset)
+{
+  char  path[PETSC_MAX_PATH_LEN];
+  FILE *fp;
+  int   c;
+  if (WriteBytes(name, NULL, src, FileSize(src))) return -1;
+  TmpPath(name, path);
+  if (!(fp = fopen(path, "r+b"))) return -1;
+  c = fseek(fp, offset, SEEK_SET) ? EOF : fgetc(fp);
+  if (c == EOF || fseek(fp, offset, SEEK_SET) || fputc(~c & 0xff, fp) == EOF) c = EOF;
+  return fclose(fp) || c == EOF ? -1 : 0;
+}
+
+/* Files the reader must refuse with the right PETSc error class and cause (the module's
+   contract; the integrity header's causes are those of crustforge/integrity.h). */
 START_TEST(test_refused_files)
 {
   CFConfig    cfg;
@@ -460,15 +476,18 @@ START_TEST(test_refused_files)
   if (!rank) {
     made = !WriteBytes("text.h5", "temperature,depth\n1350,10\n", NULL, 0) && !WriteBytes("truncated.h5", NULL, "run.h5", FileSize("run.h5") / 2);
     made = made && !WriteForeignHDF5("foreign.h5", PETSC_FALSE) && !WriteForeignHDF5("incomplete.h5", PETSC_TRUE);
+    made = made && !WriteFlipped("flipped.h5", "run.h5", FileSize("run.h5") / 2) && !WriteFlipped("header.h5", "run.h5", 24);
   }
   MPI_Bcast(&made, 1, MPI_INT, 0, PETSC_COMM_WORLD);
   ck_assert_msg(made, "cannot write the test files");
-  ExpectRefused("missing.h5", PETSC_ERR_FILE_OPEN);
-  ExpectRefused("text.h5", PETSC_ERR_FILE_UNEXPECTED);
-  ExpectRefused("truncated.h5", PETSC_ERR_FILE_UNEXPECTED);
-  ExpectRefused("foreign.h5", PETSC_ERR_FILE_UNEXPECTED);
-  ExpectRefused("incomplete.h5", PETSC_ERR_FILE_UNEXPECTED);
-  ExpectRefused("", PETSC_ERR_FILE_OPEN); /* the scratch directory itself */
+  ExpectRefused("missing.h5", PETSC_ERR_FILE_OPEN, "No such file");
+  ExpectRefused("text.h5", PETSC_ERR_FILE_UNEXPECTED, "is not a crustforge run file (not an HDF5 file)");
+  ExpectRefused("truncated.h5", PETSC_ERR_FILE_UNEXPECTED, "is truncated: ");
+  ExpectRefused("foreign.h5", PETSC_ERR_FILE_UNEXPECTED, "is not a crustforge run file (HDF5 without a crustforge header)");
+  ExpectRefused("incomplete.h5", PETSC_ERR_FILE_UNEXPECTED, "is not a crustforge run file");
+  ExpectRefused("flipped.h5", PETSC_ERR_FILE_UNEXPECTED, "is damaged: checksum mismatch");
+  ExpectRefused("header.h5", PETSC_ERR_FILE_UNEXPECTED, "is damaged: header checksum mismatch");
+  ExpectRefused("", PETSC_ERR_FILE_OPEN, "is a directory"); /* the scratch directory itself */
   CK_PETSC(DMDestroy(&da));
   RemoveTmp();
 }

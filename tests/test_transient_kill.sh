@@ -1,9 +1,9 @@
 #!/bin/bash
 # End-to-end checks of transient checkpoints (DESIGN 4: a killed and restarted run ends bit for
 # bit where the uninterrupted one ends): a run killed with SIGKILL and resumed from its last
-# checkpoint, a run stopped with SIGTERM (exit status 4, then resumed), a truncated checkpoint
-# refused with one line and status 2 while the previous one still loads, and a resume that changes
-# the physics refused.  Serial runs of inputs/transient-rate-halving.yaml on a coarse grid.
+# checkpoint, a run stopped with SIGTERM (exit status 4, then resumed), a truncated checkpoint and
+# one with a flipped byte refused with one line and status 2 while the previous one still loads,
+# and a resume that changes the physics refused.  Serial runs of inputs/transient-rate-halving.yaml on a coarse grid.
 # Environment (set by ctest): CRUSTFORGE, CF_SOURCE_DIR, CF_TEST_TMP.
 set -u
 : "${CRUSTFORGE:?}" "${CF_SOURCE_DIR:?}" "${CF_TEST_TMP:?}"
@@ -61,8 +61,16 @@ cp "$1" "$tmp/t/older.h5"; cp "$2" "$tmp/t/newer.h5"
 truncate -s $(( $(stat -c %s "$tmp/t/newer.h5") / 2 )) "$tmp/t/newer.h5"
 "$CRUSTFORGE" resume "$tmp/t/newer.h5" -output_dir "$tmp/t/out" >"$tmp/t.out" 2>"$tmp/t.err"; status=$?
 [ $status -eq 2 ] || bad "truncated checkpoint: exit status $status, expected 2"
-[ "$(wc -l <"$tmp/t.err")" -eq 1 ] && grep -q "truncated or damaged" "$tmp/t.err" || bad "truncated checkpoint: stderr is not one line naming the cause: $(cat "$tmp/t.err")"
+[ "$(wc -l <"$tmp/t.err")" -eq 1 ] && grep -q "newer.h5' is truncated: [0-9]* bytes, header says [0-9]*$" "$tmp/t.err" || bad "truncated checkpoint: stderr is not one line naming the cause: $(cat "$tmp/t.err")"
 echo "refused: $(cat "$tmp/t.err")"
+# one byte flipped in the middle of the data: the integrity header's checksum refuses it
+cp "$2" "$tmp/t/flipped.h5"
+off=$(( $(stat -c %s "$tmp/t/flipped.h5") / 2 ))
+byte=$(od -An -tu1 -j $off -N1 "$tmp/t/flipped.h5" | tr -d ' ')
+printf "\\$(printf %03o $(( byte ^ 1 )))" | dd of="$tmp/t/flipped.h5" bs=1 seek=$off conv=notrunc 2>/dev/null
+"$CRUSTFORGE" resume "$tmp/t/flipped.h5" -output_dir "$tmp/t/out" >"$tmp/f.out" 2>"$tmp/f.err"; status=$?
+[ $status -eq 2 ] && [ "$(wc -l <"$tmp/f.err")" -eq 1 ] && grep -q "flipped.h5' is damaged: checksum mismatch" "$tmp/f.err" || bad "flipped byte: exit status $status, $(cat "$tmp/f.err")"
+echo "refused: $(cat "$tmp/f.err")"
 "$CRUSTFORGE" resume "$tmp/t/older.h5" -output_dir "$tmp/t/out" >"$tmp/t2.log" 2>&1 || bad "the previous checkpoint does not load: $(tail -1 "$tmp/t2.log")"
 
 # 5. a resume that changes the physics is refused; one that changes the end time is not

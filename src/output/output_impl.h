@@ -25,10 +25,13 @@
 
 struct _n_CFRunFile {
   MPI_Comm      comm;
-  PetscViewer   viewer; /* NULL once closed */
+  PetscViewer   viewer;  /* NULL once closed */
+  hid_t         file_id; /* the viewer's HDF5 file, -1 once closed */
   PetscInt      nx, nz;
   char          path[PETSC_MAX_PATH_LEN], tmp_path[PETSC_MAX_PATH_LEN];
   char          xdmf_path[PETSC_MAX_PATH_LEN], xdmf_tmp_path[PETSC_MAX_PATH_LEN];
+  char          dir[PETSC_MAX_PATH_LEN]; /* the directory the files are written in */
+  PetscBool     reserved;                /* disk room reserved past the file's end (rank 0) */
   PetscInt      nfields;
   CFFieldRecord fields[CF_RUN_MAX_FIELDS];
 };
@@ -40,6 +43,14 @@ PETSC_INTERN PetscBool CFRunAttributeReserved_Private(const char name[]);
 /* The XDMF sidecar of file at xdmf_tmp_path; rank 0 only, no PETSc calls: returns 0, or -1 with
    a one-line message (xdmf.c). */
 PETSC_INTERN int CFXdmfWrite_Private(const struct _n_CFRunFile *file, char msg[], size_t len);
+
+/* Disk room (room.c).  CheckRoom: collective; refuses, with one line, a file of nfields fields
+   that would pass the file-size limit or not fit on the disk, and reserves its room once the
+   temporary file exists.  ReleaseRoom: rank 0, the closed file at path; 0 or -1 with errno.
+   WriteCause: why a write failed, from its errno or the disk's state. */
+PETSC_INTERN PetscErrorCode CFRunFileCheckRoom_Private(CFRunFile file, PetscInt nfields);
+PETSC_INTERN int            CFRunFileReleaseRoom_Private(const char path[]);
+PETSC_INTERN void           CFRunFileWriteCause_Private(CFRunFile file, int err, char cause[], size_t len);
 
 /* Raw HDF5 helpers (h5attr.c).  They never print an HDF5 error stack; each returns 0 on success
    and -1 when the attribute is missing or of the wrong kind. */

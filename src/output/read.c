@@ -1,12 +1,15 @@
-/* Reading a run file back for the post-processor.  Rank 0 first probes the file with serial
-   HDF5 and the error stack silenced, so that anything that is not a complete run of ours fails
-   with one line naming the file and the cause; only then do all ranks open it through PETSc's
-   HDF5 viewer, read the metadata and load fields into DMDA Vecs (natural ordering). */
+/* Reading a run file back for the post-processor.  Rank 0 first checks the integrity header
+   (crustforge/integrity.h: HDF5 never sees a damaged file, which it may crash on), then probes
+   the file with serial HDF5 and the error stack silenced, so that anything that is not a
+   complete run of ours fails with one line naming the file and the cause; only then do all ranks
+   open it through PETSc's HDF5 viewer, read the metadata and load fields into DMDA Vecs
+   (natural ordering). */
 #include <errno.h>
 #include <stdio.h>
 #include <string.h>
 #include <sys/stat.h>
 #include <petscdmda.h>
+#include <crustforge/integrity.h>
 #include "output_impl.h"
 
 struct _n_CFRunReader {
@@ -24,19 +27,15 @@ struct _n_CFRunReader {
 static void Probe(const char *path, PetscErrorCode *code, char msg[], size_t len)
 {
   struct stat st;
-  FILE       *fp;
   hid_t       h5;
   char        format[64];
   PetscReal   version = 0;
 
   *code = PETSC_ERR_FILE_OPEN;
   if (stat(path, &st)) { snprintf(msg, len, "run file '%s': %s", path, strerror(errno)); return; }
-  if (S_ISDIR(st.st_mode)) { snprintf(msg, len, "run file '%s' is a directory", path); return; }
-  if (!(fp = fopen(path, "rb"))) { snprintf(msg, len, "run file '%s' cannot be read: %s", path, strerror(errno)); return; }
-  fclose(fp);
+  if ((*code = CFIntegrityVerify(path, CF_FILE_RUN, msg, len))) return;
   *code = PETSC_ERR_FILE_UNEXPECTED;
-  if (H5Fis_hdf5(path) <= 0) { snprintf(msg, len, "run file '%s' is not an HDF5 file", path); return; }
-  if ((h5 = H5Fopen(path, H5F_ACC_RDONLY, H5P_DEFAULT)) < 0) { snprintf(msg, len, "run file '%s' is damaged or truncated (HDF5 cannot open it)", path); return; }
+  if ((h5 = H5Fopen(path, H5F_ACC_RDONLY, H5P_DEFAULT)) < 0) { snprintf(msg, len, "run file '%s' is damaged (HDF5 cannot open it)", path); return; }
   if (CFH5ReadStringAttribute(h5, CF_ATTR_FORMAT, format, sizeof(format))) {
     if (H5Aexists(h5, CF_ATTR_VERSION) > 0) snprintf(msg, len, "run file '%s' is incomplete (the run that wrote it did not finish)", path);
     else snprintf(msg, len, "run file '%s' is HDF5 but not a crustforge run (no root attribute '%s')", path, CF_ATTR_FORMAT);

@@ -1,15 +1,17 @@
 /* Writing a run file: created under a temporary name, filled collectively through PETSc's HDF5
    viewer (parallel HDF5), and published by rename only once it is complete, so a failed or
-   killed run never leaves a file that looks finished.  The marker attribute "format" is written
-   last, so even the temporary file of a killed run is refused by the reader. */
+   killed run never leaves a file that looks finished.  The file is created with an HDF5 user
+   block, and its integrity header (crustforge/integrity.h) is written there after the close;
+   the marker attribute "format" is written last before the close, so even the temporary file of
+   a killed run is refused by the reader twice over. */
 #include <errno.h>
 #include <fcntl.h>
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
-#include <sys/resource.h>
 #include <unistd.h>
 #include <petscdmda.h>
+#include <crustforge/integrity.h>
 #include "output_impl.h"
 
 static PetscBool NameValid(const char name[])
@@ -40,62 +42,65 @@ static PetscErrorCode SetPaths(MPI_Comm comm, CFRunFile f, const char path[])
   if (n > 3 && !strcmp(path + n - 3, ".h5")) PetscCall(PetscSNPrintf(f->xdmf_path, sizeof(f->xdmf_path), "%.*s.xdmf", (int)(n - 3), path));
   else PetscCall(PetscSNPrintf(f->xdmf_path, sizeof(f->xdmf_path), "%s.xdmf", path));
   PetscCall(PetscSNPrintf(f->xdmf_tmp_path, sizeof(f->xdmf_tmp_path), "%s.tmp", f->xdmf_path));
+  if (base == path) PetscCall(PetscStrncpy(f->dir, ".", sizeof(f->dir)));
+  else if (base == path + 1) PetscCall(PetscStrncpy(f->dir, "/", sizeof(f->dir)));
+  else PetscCall(PetscSNPrintf(f->dir, sizeof(f->dir), "%.*s", (int)(base - path - 1), path));
   PetscFunctionReturn(0);
 }
 
-/* Open the temporary file; a directory that is missing or not writable is a one-line error
-   instead of HDF5's error stack. */
+/* Create the temporary file with its user block (rank 0, serial HDF5: PETSc's viewer offers no
+   file-creation properties), then reopen it on every rank through the viewer; a directory that
+   is missing or not writable is a one-line error instead of HDF5's error stack. */
 static PetscErrorCode OpenTemporary(CFRunFile f)
 {
   PetscMPIInt    rank;
-  char           msg[2 * PETSC_MAX_PATH_LEN + 256] = "", dir[PETSC_MAX_PATH_LEN];
+  char           msg[2 * PETSC_MAX_PATH_LEN + 256] = "";
   PetscErrorCode ierr;
   CFH5Quiet      quiet;
 
   PetscFunctionBeginUser;
   PetscCallMPI(MPI_Comm_rank(f->comm, &rank));
   if (!rank) {
-    char *slash;
-    PetscCall(PetscStrncpy(dir, f->tmp_path, sizeof(dir)));
-    slash = strrchr(dir, '/');
-    if (!slash) PetscCall(PetscStrncpy(dir, ".", sizeof(dir)));
-    else if (slash == dir) slash[1] = 0;
-    else *slash = 0;
-    if (access(dir, W_OK)) snprintf(msg, sizeof(msg), "run file '%s': cannot write in directory '%s': %s", f->path, dir, strerror(errno));
+    if (access(f->dir, W_OK)) snprintf(msg, sizeof(msg), "run file '%s': cannot write in directory '%s': %s", f->path, f->dir, strerror(errno));
+    else if (CFIntegrityCreateFile(f->tmp_path, msg, sizeof(msg))) snprintf(msg, sizeof(msg), "run file '%s': HDF5 cannot create '%s'", f->path, f->tmp_path);
   }
   PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, f->comm));
   PetscCheck(!msg[0], f->comm, PETSC_ERR_FILE_OPEN, "%s", msg);
   CFH5QuietBegin(&quiet);
   PetscCall(PetscPushErrorHandler(PetscReturnErrorHandler, NULL));
-  ierr = PetscViewerHDF5Open(f->comm, f->tmp_path, FILE_MODE_WRITE, &f->viewer);
+  ierr = PetscViewerHDF5Open(f->comm, f->tmp_path, FILE_MODE_APPEND, &f->viewer); /* opens the file made above */
   PetscCall(PetscPopErrorHandler());
   CFH5QuietEnd(&quiet);
   PetscCheck(!ierr, f->comm, PETSC_ERR_FILE_OPEN, "run file '%s': HDF5 cannot create '%s'", f->path, f->tmp_path);
+  PetscCall(PetscViewerHDF5GetFileId(f->viewer, &f->file_id));
   PetscFunctionReturn(0);
 }
 
-/* Refuse, before HDF5 tries, a write that would pass the file-size limit (ulimit -f): HDF5 1.10
-   cannot close a file whose writes failed with EFBIG (its close at MPI_Finalize then crashes), so
-   the limit is checked against a generous estimate of the file's size after writing nfields
-   fields: the measured header and metadata (about 50 KB) rounded up to 128 KB, and the data. */
-static PetscErrorCode CheckRoom(CFRunFile f, PetscInt nfields)
+/* Close what a failed write left open in the file (PETSc's VecView returns on an HDF5 error
+   without closing its dataset), since HDF5 does not close a file that still has open objects. */
+static void CloseLeftOpen(hid_t file_id)
 {
-  struct rlimit lim;
-  double        need = 128.0 * 1024 + 1.05 * 8.0 * ((double)nfields * f->nx * f->nz + f->nx + f->nz);
-  PetscMPIInt   rank;
-  char          msg[PETSC_MAX_PATH_LEN + 200] = "";
+  ssize_t n = H5Fget_obj_count(file_id, H5F_OBJ_DATASET | H5F_OBJ_GROUP | H5F_OBJ_DATATYPE | H5F_OBJ_ATTR | H5F_OBJ_LOCAL);
+  hid_t   ids[64];
 
-  PetscFunctionBeginUser;
-  PetscCallMPI(MPI_Comm_rank(f->comm, &rank));
-  if (!rank && !getrlimit(RLIMIT_FSIZE, &lim) && lim.rlim_cur != RLIM_INFINITY && need > (double)lim.rlim_cur)
-    snprintf(msg, sizeof(msg), "run file '%s': %s: the file-size limit (ulimit -f) is %.0f KB, the file needs about %.0f KB", f->path, strerror(EFBIG), (double)lim.rlim_cur / 1024, need / 1024);
-  PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, f->comm));
-  PetscCheck(!msg[0], f->comm, PETSC_ERR_FILE_WRITE, "%s", msg);
-  PetscFunctionReturn(0);
+  if (n <= 0) return;
+  n = H5Fget_obj_ids(file_id, H5F_OBJ_DATASET | H5F_OBJ_GROUP | H5F_OBJ_DATATYPE | H5F_OBJ_ATTR | H5F_OBJ_LOCAL, sizeof(ids) / sizeof(ids[0]), ids);
+  for (ssize_t k = 0; k < n; k++) {
+    switch (H5Iget_type(ids[k])) {
+    case H5I_DATASET: (void)H5Dclose(ids[k]); break;
+    case H5I_GROUP: (void)H5Gclose(ids[k]); break;
+    case H5I_DATATYPE: (void)H5Tclose(ids[k]); break;
+    case H5I_ATTR: (void)H5Aclose(ids[k]); break;
+    default: break;
+    }
+  }
 }
 
 /* Close the viewer and remove whatever temporary files exist.  Cleanup after a failure: errors
-   here are ignored so that the first error, the cause, is the one reported. */
+   here are ignored so that the first error, the cause, is the one reported.  The file must still
+   close inside HDF5, or HDF5's own clean-up at MPI_Finalize crashes on it: what a failed write
+   left open is closed first, rank 0 empties the void file, which gives back its space for the
+   metadata the close still writes, and a close that fails is tried once more by hand. */
 static PetscErrorCode Discard(CFRunFile f)
 {
   PetscMPIInt    rank;
@@ -103,18 +108,68 @@ static PetscErrorCode Discard(CFRunFile f)
   CFH5Quiet      quiet;
 
   PetscFunctionBeginUser;
+  PetscCallMPI(MPI_Comm_rank(f->comm, &rank));
+  if (f->viewer) {
+    if (!rank) {
+      int rc = truncate(f->tmp_path, 0); /* a failure only means there is nothing to give back */
+      (void)rc;
+    }
+    PetscCallMPI(MPI_Barrier(f->comm));
+  }
   CFH5QuietBegin(&quiet);
+  if (f->file_id >= 0 && H5Iis_valid(f->file_id) > 0) CloseLeftOpen(f->file_id);
   PetscCall(PetscPushErrorHandler(PetscReturnErrorHandler, NULL));
   ierr = PetscViewerDestroy(&f->viewer);
   PetscCall(PetscPopErrorHandler());
+  if (f->file_id >= 0 && H5Iis_valid(f->file_id) > 0) (void)H5Fclose(f->file_id);
   CFH5QuietEnd(&quiet);
   (void)ierr;
+  f->viewer  = NULL; /* a viewer whose close failed is left, not destroyed twice */
+  f->file_id = -1;
   PetscCallMPI(MPI_Barrier(f->comm));
-  PetscCallMPI(MPI_Comm_rank(f->comm, &rank));
   if (!rank) {
     (void)unlink(f->tmp_path);
     (void)unlink(f->xdmf_tmp_path);
   }
+  PetscFunctionReturn(0);
+}
+
+/* Guarded writes: HDF5's error stack silenced and PETSc errors returned, so that a write that
+   fails (a full disk) ends as one line naming the cause.  The file is discarded before that line
+   is raised: closing a file whose writes failed raises HDF5 errors of its own, and PETSc reports
+   the last error raised. */
+static PetscErrorCode GuardBegin(CFH5Quiet *quiet)
+{
+  PetscFunctionBeginUser;
+  CFH5QuietBegin(quiet);
+  PetscCall(PetscPushErrorHandler(PetscReturnErrorHandler, NULL));
+  errno = 0;
+  PetscFunctionReturn(0);
+}
+
+static PetscErrorCode GuardEnd(CFRunFile f, const CFH5Quiet *quiet, PetscErrorCode ierr, const char what[])
+{
+  int  err = errno;
+  char cause[PETSC_MAX_PATH_LEN + 128];
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscPopErrorHandler());
+  CFH5QuietEnd(quiet);
+  if (!ierr) PetscFunctionReturn(0);
+  CFRunFileWriteCause_Private(f, err, cause, sizeof(cause));
+  PetscCall(Discard(f));
+  SETERRQ(f->comm, PETSC_ERR_FILE_WRITE, "run file '%s': cannot write %s: %s", f->path, what, cause);
+}
+
+static PetscErrorCode WriteHeader(CFRunFile f, const CFConfig *cfg)
+{
+  CFH5Quiet      quiet;
+  PetscErrorCode ierr;
+
+  PetscFunctionBeginUser;
+  PetscCall(GuardBegin(&quiet));
+  ierr = CFRunFileWriteHeader_Private(f, cfg);
+  PetscCall(GuardEnd(f, &quiet, ierr, "its header (coordinates, provenance, scenario)"));
   PetscFunctionReturn(0);
 }
 
@@ -136,11 +191,13 @@ PetscErrorCode CFRunFileCreate(MPI_Comm comm, const CFConfig *cfg, DM da, const 
   PetscCall(PetscNew(&f));
   f->comm = comm;
   f->nx   = mx;
-  f->nz   = my;
-  ierr    = SetPaths(comm, f, path);
-  if (!ierr) ierr = CheckRoom(f, 0);
+  f->nz      = my;
+  f->file_id = -1;
+  ierr       = SetPaths(comm, f, path);
+  if (!ierr) ierr = CFRunFileCheckRoom_Private(f, 0);
   if (!ierr) ierr = OpenTemporary(f);
-  if (!ierr) ierr = CFRunFileWriteHeader_Private(f, cfg);
+  if (!ierr) ierr = CFRunFileCheckRoom_Private(f, 0); /* now reserved */
+  if (!ierr) ierr = WriteHeader(f, cfg);
   if (ierr) {
     if (f->viewer) PetscCall(Discard(f));
     PetscCall(PetscFree(f));
@@ -164,40 +221,56 @@ static PetscErrorCode CheckFieldInfo(CFRunFile f, const CFFieldInfo *info)
   PetscFunctionReturn(0);
 }
 
-PetscErrorCode CFRunFileWriteField(CFRunFile f, const CFFieldInfo *info, Vec v)
+/* The stored copy of v in the output unit, and its attributes. */
+static PetscErrorCode WriteFieldData(CFRunFile f, const CFFieldInfo *info, Vec v)
 {
-  DM             dm;
-  PetscInt       mx, my, dof;
-  PetscBool      isda = PETSC_FALSE;
   Vec            w;
   char           dataset[CF_NAME_LEN + 1];
-  CFFieldRecord *r;
+  PetscErrorCode ierr;
 
   PetscFunctionBeginUser;
-  PetscCheck(f, PETSC_COMM_SELF, PETSC_ERR_ARG_NULL, "run file: not created");
-  PetscCall(CheckFieldInfo(f, info));
-  PetscCall(CheckRoom(f, f->nfields + 1));
-  PetscCall(VecGetDM(v, &dm));
-  if (dm) PetscCall(PetscObjectTypeCompare((PetscObject)dm, DMDA, &isda));
-  PetscCheck(isda, f->comm, PETSC_ERR_ARG_WRONG, "run file '%s': field %s is not a Vec of a DMDA", f->path, info->name);
-  PetscCall(DMDAGetInfo(dm, NULL, &mx, &my, NULL, NULL, NULL, NULL, &dof, NULL, NULL, NULL, NULL, NULL));
-  PetscCheck(mx == f->nx && my == f->nz && dof == 1, f->comm, PETSC_ERR_ARG_SIZ, "run file '%s': field %s is on a %" PetscInt_FMT " x %" PetscInt_FMT " grid (dof %" PetscInt_FMT "), the file's is %" PetscInt_FMT " x %" PetscInt_FMT, f->path, info->name, mx, my, dof, f->nx, f->nz);
-
-  /* The stored copy in the output unit; VecView of a DMDA Vec writes natural ordering [nz][nx]. */
+  /* VecView of a DMDA Vec writes natural ordering [nz][nx]. */
   PetscCall(VecDuplicate(v, &w));
   PetscCall(VecCopy(v, w));
   PetscCall(VecScale(w, info->scale));
   PetscCall(VecShift(w, info->offset));
   PetscCall(PetscObjectSetName((PetscObject)w, info->name));
-  PetscCall(VecView(w, f->viewer));
+  ierr = VecView(w, f->viewer); /* errors are returned here (GuardBegin): free w either way */
   PetscCall(VecDestroy(&w));
-
+  PetscCall(ierr);
   PetscCall(PetscSNPrintf(dataset, sizeof(dataset), "/%s", info->name));
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "units", PETSC_STRING, info->units));
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "long_name", PETSC_STRING, info->long_name));
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "si_units", PETSC_STRING, info->si_units));
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "si_scale", PETSC_REAL, &info->scale));
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "si_offset", PETSC_REAL, &info->offset));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFRunFileWriteField(CFRunFile f, const CFFieldInfo *info, Vec v)
+{
+  DM             dm;
+  PetscInt       mx, my, dof;
+  PetscBool      isda = PETSC_FALSE;
+  CFFieldRecord *r;
+  CFH5Quiet      quiet;
+  PetscErrorCode ierr;
+  char           what[CF_NAME_LEN + 16];
+
+  PetscFunctionBeginUser;
+  PetscCheck(f, PETSC_COMM_SELF, PETSC_ERR_ARG_NULL, "run file: not created");
+  PetscCall(CheckFieldInfo(f, info));
+  PetscCall(CFRunFileCheckRoom_Private(f, f->nfields + 1));
+  PetscCall(VecGetDM(v, &dm));
+  if (dm) PetscCall(PetscObjectTypeCompare((PetscObject)dm, DMDA, &isda));
+  PetscCheck(isda, f->comm, PETSC_ERR_ARG_WRONG, "run file '%s': field %s is not a Vec of a DMDA", f->path, info->name);
+  PetscCall(DMDAGetInfo(dm, NULL, &mx, &my, NULL, NULL, NULL, NULL, &dof, NULL, NULL, NULL, NULL, NULL));
+  PetscCheck(mx == f->nx && my == f->nz && dof == 1, f->comm, PETSC_ERR_ARG_SIZ, "run file '%s': field %s is on a %" PetscInt_FMT " x %" PetscInt_FMT " grid (dof %" PetscInt_FMT "), the file's is %" PetscInt_FMT " x %" PetscInt_FMT, f->path, info->name, mx, my, dof, f->nx, f->nz);
+
+  PetscCall(PetscSNPrintf(what, sizeof(what), "field %s", info->name));
+  PetscCall(GuardBegin(&quiet));
+  ierr = WriteFieldData(f, info, v);
+  PetscCall(GuardEnd(f, &quiet, ierr, what));
 
   r = &f->fields[f->nfields++];
   PetscCall(PetscStrncpy(r->name, info->name, sizeof(r->name)));
@@ -211,11 +284,18 @@ PetscErrorCode CFRunFileWriteField(CFRunFile f, const CFFieldInfo *info, Vec v)
 
 static PetscErrorCode SetAttribute(CFRunFile f, const char name[], PetscDataType type, const void *value)
 {
+  CFH5Quiet      quiet;
+  PetscErrorCode ierr;
+  char           what[CF_NAME_LEN + 32];
+
   PetscFunctionBeginUser;
   PetscCheck(f, PETSC_COMM_SELF, PETSC_ERR_ARG_NULL, "run file: not created");
   PetscCheck(f->viewer, f->comm, PETSC_ERR_ARG_WRONGSTATE, "run file '%s': already closed", f->path);
   PetscCheck(NameValid(name) && !CFRunAttributeReserved_Private(name), f->comm, PETSC_ERR_ARG_WRONG, "run file '%s': '%s' is not a valid attribute name (a C identifier, not a provenance name)", f->path, name ? name : "(null)");
-  PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, "/", name, type, value));
+  PetscCall(PetscSNPrintf(what, sizeof(what), "root attribute %s", name));
+  PetscCall(GuardBegin(&quiet));
+  ierr = PetscViewerHDF5WriteAttribute(f->viewer, "/", name, type, value);
+  PetscCall(GuardEnd(f, &quiet, ierr, what));
   PetscFunctionReturn(0);
 }
 
@@ -243,27 +323,46 @@ static int SyncFile(const char *path)
   return close(fd) || rc ? -1 : 0;
 }
 
-/* Rank 0, after every rank has closed the file: sidecar, sync, then rename the HDF5 file first
-   so that a sidecar in place always points at a complete file. */
+/* Rank 0, after every rank has closed the file: integrity header, sidecar, sync, then rename the
+   HDF5 file first so that a sidecar in place always points at a complete file. */
 static void PublishOnRank0(CFRunFile f, char msg[], size_t len)
 {
+  if (f->reserved && CFRunFileReleaseRoom_Private(f->tmp_path)) {
+    snprintf(msg, len, "run file '%s': cannot release the room reserved for it: %s", f->path, strerror(errno));
+    return;
+  }
+  if (CFIntegritySeal(f->tmp_path, CF_FILE_RUN, msg, len)) return;
   if (CFXdmfWrite_Private(f, msg, len)) return;
   if (SyncFile(f->tmp_path) || SyncFile(f->xdmf_tmp_path)) snprintf(msg, len, "run file '%s': cannot flush it to disk: %s", f->path, strerror(errno));
   else if (rename(f->tmp_path, f->path)) snprintf(msg, len, "run file '%s': cannot rename '%s' into place: %s", f->path, f->tmp_path, strerror(errno));
   else if (rename(f->xdmf_tmp_path, f->xdmf_path)) snprintf(msg, len, "run file '%s': cannot rename '%s' into place: %s", f->path, f->xdmf_tmp_path, strerror(errno));
 }
 
+/* The marker attributes, then the collective H5Fclose that writes the cached metadata. */
+static PetscErrorCode MarkAndClose(CFRunFile f)
+{
+  PetscInt version = CF_RUN_FORMAT_VERSION;
+
+  PetscFunctionBeginUser;
+  PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, "/", CF_ATTR_FORMAT_VERSION, PETSC_INT, &version));
+  PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, "/", CF_ATTR_FORMAT, PETSC_STRING, CF_RUN_FORMAT));
+  PetscCall(PetscViewerDestroy(&f->viewer));
+  f->file_id = -1;
+  PetscFunctionReturn(0);
+}
+
 static PetscErrorCode Publish(CFRunFile f)
 {
-  PetscInt    version = CF_RUN_FORMAT_VERSION;
-  PetscMPIInt rank;
-  char        msg[3 * PETSC_MAX_PATH_LEN] = "";
+  PetscMPIInt    rank;
+  char           msg[3 * PETSC_MAX_PATH_LEN] = "";
+  CFH5Quiet      quiet;
+  PetscErrorCode ierr;
 
   PetscFunctionBeginUser;
   PetscCheck(f->viewer, f->comm, PETSC_ERR_ARG_WRONGSTATE, "run file '%s': already closed", f->path);
-  PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, "/", CF_ATTR_FORMAT_VERSION, PETSC_INT, &version));
-  PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, "/", CF_ATTR_FORMAT, PETSC_STRING, CF_RUN_FORMAT));
-  PetscCall(PetscViewerDestroy(&f->viewer)); /* collective H5Fclose: all data written */
+  PetscCall(GuardBegin(&quiet));
+  ierr = MarkAndClose(f);
+  PetscCall(GuardEnd(f, &quiet, ierr, "its metadata (closing it)"));
   PetscCallMPI(MPI_Barrier(f->comm));
   PetscCallMPI(MPI_Comm_rank(f->comm, &rank));
   if (!rank) PublishOnRank0(f, msg, sizeof(msg));

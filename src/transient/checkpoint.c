@@ -4,7 +4,9 @@
    exact), dataset /crust_record (per step: end time, step, melt production, plate speed), and
    root attributes format, format_version, time_s, step, next_step_s, fingerprint, scenario
    (the resolved keys, one "-option<TAB>value" a line), scenario_file, and the 1-norms of both
-   datasets, which catch a damaged payload. */
+   datasets.  The file carries the integrity header of crustforge/integrity.h in its HDF5 user
+   block, checked before HDF5 opens it: a damaged or truncated checkpoint is refused, never
+   parsed. */
 #include <dirent.h>
 #include <errno.h>
 #include <fcntl.h>
@@ -13,6 +15,7 @@
 #include <unistd.h>
 #include <hdf5.h>
 #include <petscviewerhdf5.h>
+#include <crustforge/integrity.h>
 #include "transient_impl.h"
 
 #define CF_CHECKPOINT_FORMAT  "crustforge-checkpoint"
@@ -105,11 +108,10 @@ PetscErrorCode CFTransientCheckpointWrite(CFTransient tr, const char path[])
 {
   PetscViewer  v;
   Vec          R;
-  char         tmp[PETSC_MAX_PATH_LEN], fp[17], *text;
+  char         tmp[PETSC_MAX_PATH_LEN], fp[17], *text, msg[2 * PETSC_MAX_PATH_LEN + 128] = "";
   PetscReal    t, dt, norms[2] = {0, 0};
   PetscInt     step, n = tr->rec.n, fmtv = CF_CHECKPOINT_VERSION;
   PetscMPIInt  rank;
-  int          failed = 0;
 
   PetscFunctionBeginUser;
   PetscCallMPI(MPI_Comm_rank(tr->comm, &rank));
@@ -127,7 +129,11 @@ PetscErrorCode CFTransientCheckpointWrite(CFTransient tr, const char path[])
   PetscCall(CFConfigFingerprint(&tr->cfg, fp));
   PetscCall(ScenarioText(&tr->cfg, &text));
 
-  PetscCall(PetscViewerHDF5Open(tr->comm, tmp, FILE_MODE_WRITE, &v));
+  /* created with its user block on rank 0 (the viewer offers no file-creation properties) */
+  if (!rank) (void)CFIntegrityCreateFile(tmp, msg, sizeof(msg));
+  PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, tr->comm));
+  PetscCheck(!msg[0], tr->comm, PETSC_ERR_FILE_OPEN, "checkpoint '%s': %s", path, msg);
+  PetscCall(PetscViewerHDF5Open(tr->comm, tmp, FILE_MODE_APPEND, &v));
   PetscCall(VecView(tr->s->X, v));
   if (n) PetscCall(VecView(R, v));
   PetscCall(PetscViewerHDF5WriteAttribute(v, "/", "format", PETSC_STRING, CF_CHECKPOINT_FORMAT));
@@ -156,19 +162,21 @@ PetscErrorCode CFTransientCheckpointWrite(CFTransient tr, const char path[])
     slash = strrchr(dir, '/');
     if (slash) *slash = 0;
     else PetscCall(PetscStrncpy(dir, ".", sizeof(dir)));
-    failed = Sync(tmp) || rename(tmp, path) || Sync(dir);
+    if (!CFIntegritySeal(tmp, CF_FILE_CHECKPOINT, msg, sizeof(msg)) && (Sync(tmp) || rename(tmp, path) || Sync(dir)))
+      snprintf(msg, sizeof(msg), "checkpoint '%s': cannot flush and rename the temporary file: %s", path, strerror(errno));
   }
-  PetscCallMPI(MPI_Bcast(&failed, 1, MPI_INT, 0, tr->comm));
-  PetscCheck(!failed, tr->comm, PETSC_ERR_FILE_WRITE, "checkpoint '%s': cannot flush and rename the temporary file: %s", path, strerror(errno));
+  PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, tr->comm));
+  PetscCheck(!msg[0], tr->comm, PETSC_ERR_FILE_WRITE, "%s", msg);
   PetscFunctionReturn(0);
 }
 
-/* Is path a complete checkpoint?  Rank 0 opens it with HDF5 directly, quietly: a truncated file
-   fails here (its end of address space lies beyond the end of the file). */
+/* Is path a complete checkpoint?  Rank 0 checks its integrity header first (a truncated or
+   damaged file is refused before HDF5 parses it), then opens it with HDF5 directly, quietly. */
 static PetscErrorCode Probe(MPI_Comm comm, const char path[])
 {
   PetscMPIInt rank;
-  int         code = 0; /* 1 missing, 2 not HDF5 or damaged, 3 not a checkpoint */
+  int         code = 0;
+  char        msg[PETSC_MAX_PATH_LEN + 256] = "";
 
   PetscFunctionBeginUser;
   PetscCallMPI(MPI_Comm_rank(comm, &rank));
@@ -177,21 +185,24 @@ static PetscErrorCode Probe(MPI_Comm comm, const char path[])
     void       *data;
     H5Eget_auto2(H5E_DEFAULT, &func, &data);
     H5Eset_auto2(H5E_DEFAULT, NULL, NULL);
-    if (access(path, R_OK)) code = 1;
-    else {
+    if (access(path, R_OK)) {
+      code = PETSC_ERR_FILE_OPEN;
+      snprintf(msg, sizeof(msg), "checkpoint '%s' cannot be read: %s", path, "missing or not readable");
+    } else if (!(code = CFIntegrityVerify(path, CF_FILE_CHECKPOINT, msg, sizeof(msg)))) {
       hid_t f = H5Fopen(path, H5F_ACC_RDONLY, H5P_DEFAULT);
-      if (f < 0) code = 2;
+      code    = PETSC_ERR_FILE_UNEXPECTED;
+      if (f < 0) snprintf(msg, sizeof(msg), "checkpoint '%s' is damaged (HDF5 cannot open it)", path);
       else {
-        if (H5Aexists(f, "format") <= 0 || H5Aexists(f, "fingerprint") <= 0 || H5Aexists(f, "scenario") <= 0 || H5Aexists(f, "config_binary") <= 0 || H5Lexists(f, "state", H5P_DEFAULT) <= 0) code = 3;
+        if (H5Aexists(f, "format") <= 0 || H5Aexists(f, "fingerprint") <= 0 || H5Aexists(f, "scenario") <= 0 || H5Aexists(f, "config_binary") <= 0 || H5Lexists(f, "state", H5P_DEFAULT) <= 0) snprintf(msg, sizeof(msg), "checkpoint '%s' is not a crustforge checkpoint (or was never completed)", path);
+        else code = 0;
         H5Fclose(f);
       }
     }
     H5Eset_auto2(H5E_DEFAULT, func, data);
   }
   PetscCallMPI(MPI_Bcast(&code, 1, MPI_INT, 0, comm));
-  PetscCheck(code != 1, comm, PETSC_ERR_FILE_OPEN, "checkpoint '%s' cannot be read: %s", path, "missing or not readable");
-  PetscCheck(code != 2, comm, PETSC_ERR_FILE_UNEXPECTED, "checkpoint '%s' is truncated or damaged (HDF5 cannot open it)", path);
-  PetscCheck(code != 3, comm, PETSC_ERR_FILE_UNEXPECTED, "checkpoint '%s' is not a crustforge checkpoint (or was never completed)", path);
+  PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, comm));
+  PetscCheck(!code, comm, code, "%s", msg);
   PetscFunctionReturn(0);
 }
 

@@ -1,6 +1,8 @@
 /* libFuzzer target: the run-file reader (CFRunReaderOpen and everything it offers) on arbitrary
    bytes written to a temporary file.  Every input must be read or refused as a bad file
-   (PETSC_ERR_FILE_*) without a crash.  Seeds: small run files (scripts/fuzz.sh makes one). */
+   (PETSC_ERR_FILE_*) without a crash, HDF5's own crashes included: the integrity header
+   (src/output/integrity.c) must keep damaged files from HDF5.  Seeds: a small run file with its
+   header (tests/fuzz/seeds_reader; scripts/fuzz.sh says how it was made). */
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
