@@ -63,38 +63,62 @@ static PetscErrorCode WriteRunFile(MPI_Comm comm, const CFConfig *cfg, DM da, Ve
   PetscFunctionReturn(0);
 }
 
-PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport *rep, PetscBool write, CFSummary *sum)
+/* The run file, in its log stage. */
+static PetscErrorCode Output(MPI_Comm comm, CFSteady s, const CFSolveReport *rep, DM da, Vec v[CF_NFIELDS])
 {
   const CFConfig *cfg = CFSteadyGetConfig(s);
-  Vec             v[CF_NFIELDS];
-  DM              da;
-  CFRunData       rd;
-  CFPostSettings  set;
+  PetscReal       H, Hs;
+  PetscErrorCode  ierr;
 
   PetscFunctionBeginUser;
   PetscCall(PushStage("Output"));
-  PetscCall(ComputeFields(s, v));
-  PetscCall(CFSteadyGetScalarDM(s, &da));
-  if (write) {
-    PetscReal H, Hs;
-    PetscCall(CFSteadyCrustalThickness(s, &H, &Hs));
-    PetscCall(WriteRunFile(comm, cfg, da, v, rep, H, Hs));
-    PetscCall(PetscPrintf(comm, "wrote %s/run.h5 and run.xdmf\n", cfg->output_dir));
-  }
+  PetscCall(CFSteadyCrustalThickness(s, &H, &Hs));
+  ierr = WriteRunFile(comm, cfg, da, v, rep, H, Hs);
   PetscCall(PetscLogStagePop());
+  PetscCall(ierr);
+  PetscCall(PetscPrintf(comm, "wrote %s/run.h5 and run.xdmf\n", cfg->output_dir));
+  PetscFunctionReturn(0);
+}
+
+/* Summary and post-processing outputs from the run's fields, in their log stage. */
+static PetscErrorCode PostProcess(MPI_Comm comm, CFSteady s, const CFSolveReport *rep, PetscBool write, CFSummary *sum, DM da, Vec v[CF_NFIELDS])
+{
+  const CFConfig *cfg = CFSteadyGetConfig(s);
+  CFRunData       rd;
+  CFPostSettings  set;
+  PetscErrorCode  ierr = 0;
+
+  PetscFunctionBeginUser;
   PetscCall(PushStage("Post-processing"));
   PetscCall(CFRunDataCreate(comm, cfg, &rd));
-  for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(CFRunDataSetField(comm, &rd, (CFFieldId)f, da, v[f]));
+  for (PetscInt f = 0; f < CF_NFIELDS && !ierr; f++) ierr = CFRunDataSetField(comm, &rd, (CFFieldId)f, da, v[f]);
   rd.nonlinear_iterations = rep->nonlinear_iterations;
   rd.linear_iterations    = rep->linear_iterations;
   rd.residual_norm        = rep->final_residual;
   rd.solve_seconds        = rep->seconds;
-  PetscCall(CFPostSettingsFromConfig(cfg, &set));
-  if (sum) PetscCall(CFPostSummary(comm, &rd, &set, sum));
-  if (write) PetscCall(CFPostRun(comm, &rd, &set, cfg->output_dir, cfg->output_figures));
+  if (!ierr) ierr = CFPostSettingsFromConfig(cfg, &set);
+  if (!ierr && sum) ierr = CFPostSummary(comm, &rd, &set, sum);
+  if (!ierr && write) ierr = CFPostRun(comm, &rd, &set, cfg->output_dir, cfg->output_figures);
   PetscCall(CFRunDataDestroy(&rd));
-  for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(VecDestroy(&v[f]));
   PetscCall(PetscLogStagePop());
+  PetscCall(ierr);
+  PetscFunctionReturn(0);
+}
+
+/* The fields are freed on the error paths too (a failed write, a full disk). */
+PetscErrorCode CFRunSteadyResults(MPI_Comm comm, CFSteady s, const CFSolveReport *rep, PetscBool write, CFSummary *sum)
+{
+  Vec            v[CF_NFIELDS];
+  DM             da;
+  PetscErrorCode ierr = 0;
+
+  PetscFunctionBeginUser;
+  PetscCall(ComputeFields(s, v));
+  PetscCall(CFSteadyGetScalarDM(s, &da));
+  if (write) ierr = Output(comm, s, rep, da, v);
+  if (!ierr) ierr = PostProcess(comm, s, rep, write, sum, da, v);
+  for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(VecDestroy(&v[f]));
+  PetscCall(ierr);
   PetscFunctionReturn(0);
 }
 

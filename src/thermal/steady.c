@@ -34,9 +34,11 @@ void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCe
   }
 }
 
-/* A NaN or Inf in the state or the residual stops the solve at once, naming the first such cell
-   (on the lowest rank that has one) and the field, instead of surfacing iterations later as a
-   diverged Newton step.  Collective, like the residual evaluation itself: one integer reduction. */
+/* A NaN or Inf in the state or the residual stops the solve, naming the first such cell (on the
+   lowest rank that has one) and the field, instead of surfacing iterations later as a diverged
+   Newton step.  The residual itself returns normally (raising inside PETSc's DMDA wrapper would
+   leave its work vectors behind): it records the message and flags a domain error, which ends
+   SNESSolve, and CFSteadySolve raises it.  Collective, like the residual: one reduction. */
 static PetscErrorCode CheckFinite(CFSteady s, const DMDALocalInfo *info, CFCellState **x, CFCellState **f)
 {
   char        msg[256] = "";
@@ -61,7 +63,17 @@ static PetscErrorCode CheckFinite(CFSteady s, const DMDALocalInfo *info, CFCellS
   PetscCallMPI(MPI_Allreduce(&mine, &first, 1, MPI_INT, MPI_MIN, s->comm));
   if (first == size) PetscFunctionReturn(0);
   PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, first, s->comm));
-  SETERRQ(s->comm, PETSC_ERR_FP, "%s", msg);
+  if (!s->nonfinite[0]) PetscCall(PetscStrncpy(s->nonfinite, msg, sizeof(s->nonfinite)));
+  PetscCall(SNESSetFunctionDomainError(s->snes));
+  PetscFunctionReturn(0);
+}
+
+/* Raise the first non-finite value a residual evaluation met. */
+static PetscErrorCode RaiseNonFinite(CFSteady s)
+{
+  PetscFunctionBeginUser;
+  PetscCheck(!s->nonfinite[0], s->comm, PETSC_ERR_FP, "%s", s->nonfinite);
+  PetscFunctionReturn(0);
 }
 
 static PetscErrorCode FormFunctionLocal(DMDALocalInfo *info, CFCellState **x, CFCellState **f, void *ptr)
@@ -280,13 +292,17 @@ static PetscErrorCode SolveOnceWith(CFSteady s, Vec Fv, CFSolveReport *r)
 {
   PetscFunctionBeginUser;
   PetscCall(CFSchurReset(s->schur));
+  s->nonfinite[0] = 0;
   PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
+  PetscCall(RaiseNonFinite(s));
   PetscCall(VecNorm(Fv, NORM_2, &r->initial_residual));
   PetscCall(SNESSolve(s->snes, NULL, s->X));
+  PetscCall(RaiseNonFinite(s));
   PetscCall(SNESGetConvergedReason(s->snes, &r->reason));
   PetscCall(SNESGetIterationNumber(s->snes, &r->nonlinear_iterations));
   PetscCall(SNESGetLinearSolveIterations(s->snes, &r->linear_iterations));
   PetscCall(SNESComputeFunction(s->snes, s->X, Fv));
+  PetscCall(RaiseNonFinite(s));
   PetscCall(VecNorm(Fv, NORM_2, &r->final_residual));
   PetscFunctionReturn(0);
 }

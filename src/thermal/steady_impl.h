@@ -90,6 +90,7 @@ struct _p_CFSteady {
   Vec            X;
   Mat            A, P; /* Jacobian; P: its first-order approximation, for picard only */
   CFSchur        schur;
+  char           nonfinite[256]; /* the first NaN or Inf a residual met, "" if none */
   PetscBool      use_coloring;
   PetscBool      analytic;  /* the operator is the analytic Jacobian (else coloured differences) */
   PetscBool      decoupled; /* outer (Picard) iterations: no temperature-depletion coupling in the Jacobian */
