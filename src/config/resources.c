@@ -6,12 +6,12 @@
 #include "resources.h"
 
 /* Peak resident memory of a whole steady run (solve, output, tables; figures off), one rank,
-   measured with /usr/bin/time -v on a 200 x 100 km grid: spacing 2 km (5 000 cells) 69 MB,
-   1 km (20 000 cells) 142 MB, 0.5 km (80 000 cells) 470 MB, i.e. about 45 MB to start plus
-   4.9 then 5.5 KB per added cell (the sparse LU's fill grows slowly with the grid).  The figure
-   taken is 6.5 KB per cell plus 50 MB (measured, rounded up). */
-#define CF_BYTES_PER_CELL 6500.0
-#define CF_BYTES_FIXED    50.0e6
+   measured with /usr/bin/time -v (tests/bench/steady.sh) on the default 400 x 200 km grid:
+   spacing 2 km (20 000 cells) 84 MB, 1 km (80 000) 190 MB, 0.5 km (320 000) 606 MB, 0.25 km
+   (1 280 000) 2.28 GB, i.e. about 50 MB to start plus 1.7 KB per added cell.  The figure taken
+   is 2 KB per cell plus 60 MB (measured, rounded up). */
+#define CF_BYTES_PER_CELL 2000.0
+#define CF_BYTES_FIXED    60.0e6
 
 PetscErrorCode CFConfigCheckMemory(MPI_Comm comm, const CFConfig *cfg)
 {
