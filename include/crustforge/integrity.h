@@ -21,7 +21,7 @@ typedef enum {
 
 /* CRC-32, streaming: Begin, Update over the bytes in order, End gives the value. */
 typedef struct {
-  uint32_t table[256];
+  uint32_t table[8][256]; /* table[0] byte-wise; table[k] for the byte k places back (slicing-by-8) */
   uint32_t crc;
 } CFCrc32;
 void     CFCrc32Begin(CFCrc32 *c);

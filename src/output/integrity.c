@@ -45,16 +45,29 @@ void CFCrc32Begin(CFCrc32 *c)
   for (uint32_t n = 0; n < 256; n++) {
     uint32_t r = n;
     for (int k = 0; k < 8; k++) r = (r >> 1) ^ (0xEDB88320u & (0u - (r & 1u)));
-    c->table[n] = r;
+    c->table[0][n] = r;
   }
+  for (int k = 1; k < 8; k++)
+    for (uint32_t n = 0; n < 256; n++) c->table[k][n] = (c->table[k - 1][n] >> 8) ^ c->table[0][c->table[k - 1][n] & 0xFFu];
   c->crc = 0xFFFFFFFFu;
 }
 
+static inline uint32_t Load32(const unsigned char *p) { return (uint32_t)p[0] | (uint32_t)p[1] << 8 | (uint32_t)p[2] << 16 | (uint32_t)p[3] << 24; }
+
+/* Eight bytes per step by "slicing-by-8" (M. E. Kounavis and F. L. Berry 2005, "A systematic
+   approach to building high performance software-based CRC generators", IEEE ISCC): the same
+   CRC as the byte-wise loop, several times faster on the sealing pass over a large run file. */
 void CFCrc32Update(CFCrc32 *c, const void *data, size_t n)
 {
   const unsigned char *p   = (const unsigned char *)data;
   uint32_t             crc = c->crc;
-  for (size_t k = 0; k < n; k++) crc = c->table[(crc ^ p[k]) & 0xFFu] ^ (crc >> 8);
+  const uint32_t(*t)[256]  = c->table;
+
+  for (; n >= 8; n -= 8, p += 8) {
+    const uint32_t lo = crc ^ Load32(p), hi = Load32(p + 4);
+    crc = t[7][lo & 0xFFu] ^ t[6][(lo >> 8) & 0xFFu] ^ t[5][(lo >> 16) & 0xFFu] ^ t[4][lo >> 24] ^ t[3][hi & 0xFFu] ^ t[2][(hi >> 8) & 0xFFu] ^ t[1][(hi >> 16) & 0xFFu] ^ t[0][hi >> 24];
+  }
+  for (; n; n--, p++) crc = t[0][(crc ^ *p) & 0xFFu] ^ (crc >> 8);
   c->crc = crc;
 }
 
