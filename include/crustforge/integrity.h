@@ -35,5 +35,8 @@ int CFIntegrityCreateFile(const char path[], char msg[], size_t len);
 int CFIntegritySeal(const char path[], CFFileKind kind, char msg[], size_t len);
 /* Check the header, length and checksum of the file at path before anything else reads it. */
 int CFIntegrityVerify(const char path[], CFFileKind kind, char msg[], size_t len);
+/* fsync a file or directory by name, so that a rename publishes data already on disk (common
+   practice for atomic replacement, no source).  0 on success, -1 with errno set. */
+int CFFileSync(const char path[]);
 
 #endif

@@ -134,7 +134,7 @@ static PetscErrorCode Integrate(CFTransient tr, const CFConfig *cfg, PetscBool r
   PetscCall(CrustFigure(tr, cfg));
   PetscCall(CFTransientGetTime(tr, &t, &step, NULL));
   PetscCall(PetscPrintf(comm, "transient: %d steps (%d this run) to t = %.6g Myr in %.1f s; crustal thickness now %.4f km\n", (int)step, (int)(step - step0), (double)CFSToMyr(t), MPI_Wtime() - wall0, (double)CFMToKm(LastThickness(tr))));
-  PetscCall(PetscPrintf(comm, "wrote %s/crust_vs_time.csv and crust_vs_distance.csv%s\n", cfg->output_dir, ckpath[0] ? "" : ""));
+  PetscCall(PetscPrintf(comm, "wrote %s/crust_vs_time.csv and crust_vs_distance.csv\n", cfg->output_dir));
   if (ckpath[0]) PetscCall(PetscPrintf(comm, "last checkpoint: %s\n", ckpath));
   PetscCheck(!signo, comm, PETSC_ERR_SIG, "interrupted by %s at step %d (t = %.6g Myr): checkpoint %s written; continue with: crustforge resume %s", signo == SIGINT ? "SIGINT" : "SIGTERM", (int)step, (double)CFSToMyr(t), ckpath, ckpath);
   if (CFTransientFinished(tr)) {

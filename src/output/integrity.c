@@ -259,3 +259,11 @@ int CFIntegrityVerify(const char path[], CFFileKind kind, char msg[], size_t len
   (void)close(fd);
   return code;
 }
+
+int CFFileSync(const char path[])
+{
+  int fd = open(path, O_RDONLY), rc;
+  if (fd < 0) return -1;
+  rc = fsync(fd);
+  return close(fd) || rc ? -1 : 0;
+}

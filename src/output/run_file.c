@@ -313,16 +313,6 @@ PetscErrorCode CFRunFileSetAttributeInt(CFRunFile f, const char name[], PetscInt
   PetscFunctionReturn(0);
 }
 
-/* Flush a closed file's data to disk before the rename makes it visible (common practice for
-   atomic replacement, no source). */
-static int SyncFile(const char *path)
-{
-  int fd = open(path, O_RDONLY), rc;
-  if (fd < 0) return -1;
-  rc = fsync(fd);
-  return close(fd) || rc ? -1 : 0;
-}
-
 /* Rank 0, after every rank has closed the file: integrity header, sidecar, sync, then rename the
    HDF5 file first so that a sidecar in place always points at a complete file. */
 static void PublishOnRank0(CFRunFile f, char msg[], size_t len)
@@ -333,7 +323,7 @@ static void PublishOnRank0(CFRunFile f, char msg[], size_t len)
   }
   if (CFIntegritySeal(f->tmp_path, CF_FILE_RUN, msg, len)) return;
   if (CFXdmfWrite_Private(f, msg, len)) return;
-  if (SyncFile(f->tmp_path) || SyncFile(f->xdmf_tmp_path)) snprintf(msg, len, "run file '%s': cannot flush it to disk: %s", f->path, strerror(errno));
+  if (CFFileSync(f->tmp_path) || CFFileSync(f->xdmf_tmp_path)) snprintf(msg, len, "run file '%s': cannot flush it to disk: %s", f->path, strerror(errno));
   else if (rename(f->tmp_path, f->path)) snprintf(msg, len, "run file '%s': cannot rename '%s' into place: %s", f->path, f->tmp_path, strerror(errno));
   else if (rename(f->xdmf_tmp_path, f->xdmf_path)) snprintf(msg, len, "run file '%s': cannot rename '%s' into place: %s", f->path, f->xdmf_tmp_path, strerror(errno));
 }

@@ -84,7 +84,7 @@ static void EnergyRow(const CFSteady s, const DMDALocalInfo *info, const CFCellS
   if (exact) CFEnergyAdvectionJacobian(rc, x, i, j, r);
   else UpwindAdvection(rc, i, j, r);
   Diffusion(rc, info, x, s->kcell, exact ? s->dkcell : NULL, i, j, r);
-  if (exact || !s->decoupled) LatentHeat(rc, x, i, j, r);
+  if (exact || s->jacobian != CF_JACOBIAN_PICARD) LatentHeat(rc, x, i, j, r);
   if (exact && rc->source) { /* a verification hook: central difference in T */
     const PetscReal h = 1e-3, xc = (i + 0.5) * rc->dx, zc = (j + 0.5) * rc->dz, T = x[j][i].T;
     CFJacRowAdd(r, i, j, 0, -(rc->source(xc, zc, T + h, rc->sctx) - rc->source(xc, zc, T - h, rc->sctx)) / (2.0 * h) * rc->dx * rc->dz);
@@ -134,7 +134,7 @@ static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCe
       PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
       r.n   = 0;
       row.c = 1;
-      CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->decoupled && !exact), &r);
+      CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->jacobian == CF_JACOBIAN_PICARD && !exact), &r);
       CFJacRowSort(&r);
       PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
     }
@@ -157,16 +157,16 @@ PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ptr)
   PetscCall(DMGetLocalVector(da, &Xl));
   PetscCall(DMGlobalToLocal(da, X, INSERT_VALUES, Xl));
   PetscCall(DMDAVecGetArrayRead(da, Xl, &x));
-  CFSteadyConductivityPatch(s, &info, (const CFCellState *const *)x, s->analytic);
+  CFSteadyConductivityPatch(s, &info, (const CFCellState *const *)x, (PetscBool)(s->jacobian == CF_JACOBIAN_ANALYTIC));
   PetscCall(CFSteadyEquilibriumMelt(s, &info, (const CFCellState *const *)x));
-  if (s->decoupled) PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_FALSE, P));
+  if (s->jacobian == CF_JACOBIAN_PICARD) PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_FALSE, P));
   else {
     PetscCall(CFSchurAssemble(s, &info, (const CFCellState *const *)x));
-    if (s->analytic) PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_TRUE, J));
+    if (s->jacobian == CF_JACOBIAN_ANALYTIC) PetscCall(Assemble(s, &info, (const CFCellState *const *)x, PETSC_TRUE, J));
   }
   PetscCall(DMDAVecRestoreArrayRead(da, Xl, &x));
   PetscCall(DMRestoreLocalVector(da, &Xl));
   /* or coloured finite differences of the full residual (the DM supplies the colouring) */
-  if (!s->decoupled && !s->analytic) PetscCall(SNESComputeJacobianDefaultColor(snes, X, J, J, NULL));
+  if (s->jacobian == CF_JACOBIAN_SPLIT) PetscCall(SNESComputeJacobianDefaultColor(snes, X, J, J, NULL));
   PetscFunctionReturn(0);
 }

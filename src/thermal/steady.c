@@ -177,19 +177,17 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
     const char *const kinds[] = {"analytic", "split", "coloring", "picard", "CFSteadyJacobian", "", NULL};
     PetscEnum         kind    = 0;
     PetscOptionsBegin(comm, "steady_", "Steady coupled solver", "crustforge");
-    PetscCall(PetscOptionsEnum("-jacobian", "analytic: the exact Jacobian as operator, GMRES preconditioned by a first-order five-point approximation; split: the same with coloured finite differences as operator; coloring: the coloured Jacobian factored directly; picard: outer iterations (temperature with the melting rate frozen, then depletion with the temperature frozen), for comparison", NULL, kinds, kind, &kind, NULL));
+    PetscCall(PetscOptionsEnum("-jacobian", "analytic: the exact Jacobian as operator, GMRES preconditioned by eliminating the depletion and a BoomerAMG cycle on the temperature (schur.c); split: the same with coloured finite differences as operator; coloring: the coloured Jacobian factored directly; picard: outer iterations (temperature with the melting rate frozen, then depletion with the temperature frozen), for comparison", NULL, kinds, kind, &kind, NULL));
     PetscOptionsEnd();
-    s->analytic     = (PetscBool)(kind == 0);
-    s->use_coloring = (PetscBool)(kind == 2);
-    s->decoupled    = (PetscBool)(kind == 3);
+    s->jacobian = (CFSteadyJacobian)kind;
   }
   PetscCall(SNESGetKSP(s->snes, &ksp));
   PetscCall(KSPGetPC(ksp, &pc));
-  if (s->use_coloring) {
+  if (s->jacobian == CF_JACOBIAN_COLORING) {
     PetscCall(KSPSetType(ksp, KSPPREONLY));
     PetscCall(PCSetType(pc, PCLU));
     PetscCall(PCFactorSetMatSolverType(pc, MATSOLVERMUMPS));
-  } else if (s->decoupled) {
+  } else if (s->jacobian == CF_JACOBIAN_PICARD) {
     PetscMPIInt size;
     PetscCallMPI(MPI_Comm_size(comm, &size));
     PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
@@ -208,7 +206,7 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
     /* the analytic Jacobian inserts the same entries every time (zeros included), so its
        pattern can form at the first assembly: preallocation only, no zeros inserted up front
        (the coloured differences need the full pattern before) */
-    if (s->analytic) PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
+    if (s->jacobian == CF_JACOBIAN_ANALYTIC) PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
     PetscCall(DMCreateMatrix(s->da, &s->A));
     PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_FALSE));
     PetscCall(SNESSetJacobian(s->snes, s->A, s->A, CFSteadyFormJacobian, s));

@@ -79,6 +79,14 @@ typedef struct {
   void           *kctx, *sctx;
 } CFResidualCtx;
 
+/* The kinds of -steady_jacobian, in the order of their names in steady.c. */
+typedef enum {
+  CF_JACOBIAN_ANALYTIC, /* the analytic Jacobian, preconditioned by schur.c */
+  CF_JACOBIAN_SPLIT,    /* coloured differences as the operator, the same preconditioner */
+  CF_JACOBIAN_COLORING, /* coloured differences factored directly */
+  CF_JACOBIAN_PICARD    /* the first-order approximation without coupling: outer iterations */
+} CFSteadyJacobian;
+
 /* The preconditioner of the coupled Newton step (schur.c). */
 typedef struct _p_CFSchur *CFSchur;
 
@@ -91,9 +99,7 @@ struct _p_CFSteady {
   Mat            A, P; /* Jacobian; P: its first-order approximation, for picard only */
   CFSchur        schur;
   char           nonfinite[256]; /* the first NaN or Inf a residual met, "" if none */
-  PetscBool      use_coloring;
-  PetscBool      analytic;  /* the operator is the analytic Jacobian (else coloured differences) */
-  PetscBool      decoupled; /* outer (Picard) iterations: no temperature-depletion coupling in the Jacobian */
+  CFSteadyJacobian jacobian; /* -steady_jacobian: what the Newton operator and its preconditioner are */
   CFFlow         flow;
   CFMeltingModel melting;
   CFResidualCtx  rc;

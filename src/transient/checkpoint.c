@@ -94,16 +94,6 @@ static PetscErrorCode RecordVec(CFTransient tr, PetscInt n, Vec *R)
   PetscFunctionReturn(0);
 }
 
-/* fsync a file or directory, so the rename publishes data that is on disk. */
-static int Sync(const char *path)
-{
-  int fd = open(path, O_RDONLY), rc;
-  if (fd < 0) return -1;
-  rc = fsync(fd);
-  close(fd);
-  return rc;
-}
-
 PetscErrorCode CFTransientCheckpointWrite(CFTransient tr, const char path[])
 {
   PetscViewer  v;
@@ -162,7 +152,7 @@ PetscErrorCode CFTransientCheckpointWrite(CFTransient tr, const char path[])
     slash = strrchr(dir, '/');
     if (slash) *slash = 0;
     else PetscCall(PetscStrncpy(dir, ".", sizeof(dir)));
-    if (!CFIntegritySeal(tmp, CF_FILE_CHECKPOINT, msg, sizeof(msg)) && (Sync(tmp) || rename(tmp, path) || Sync(dir)))
+    if (!CFIntegritySeal(tmp, CF_FILE_CHECKPOINT, msg, sizeof(msg)) && (CFFileSync(tmp) || rename(tmp, path) || CFFileSync(dir)))
       snprintf(msg, sizeof(msg), "checkpoint '%s': cannot flush and rename the temporary file: %s", path, strerror(errno));
   }
   PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, tr->comm));
