@@ -19,6 +19,7 @@ static PetscReal JacobianMismatch(CFSteady s)
   Mat       Jfd;
   PetscReal diff, ref;
 
+  CK_PETSC(CFSteadyNewtonSetUp(s)); /* a solve makes the matrices, and releases them after */
   CK_PETSC(SNESSetSolution(s->snes, s->X)); /* the coloured differences compare against it */
   CK_PETSC(SNESSetUp(s->snes));
   {
@@ -33,6 +34,7 @@ static PetscReal JacobianMismatch(CFSteady s)
   CK_PETSC(MatAXPY(Jfd, -1.0, s->A, SAME_NONZERO_PATTERN));
   CK_PETSC(MatNorm(Jfd, NORM_FROBENIUS, &diff));
   CK_PETSC(MatDestroy(&Jfd));
+  CK_PETSC(CFSteadyNewtonRelease(s));
   return diff / ref;
 }
 

@@ -170,3 +170,76 @@ PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ptr)
   if (s->jacobian == CF_JACOBIAN_SPLIT) PetscCall(SNESComputeJacobianDefaultColor(snes, X, J, J, NULL));
   PetscFunctionReturn(0);
 }
+
+/* The analytic Jacobian's matrix, preallocated exactly: a temperature row couples the
+   temperatures of the width-2 star (limited advection) and the depletions of the five-point star
+   (latent heat); a depletion row its five-point depletions and its own temperature.  The DMDA's
+   own preallocation couples both fields over the width-2 star, 18 per row against 10 on
+   average (measured in DEVELOPERS.md). */
+static PetscErrorCode CreateAnalyticJacobian(CFSteady s, Mat *A)
+{
+  const DMDALocalInfo *o = &s->owned;
+  PetscInt            *d, *f, r = 0;
+
+  PetscFunctionBeginUser;
+  PetscCall(DMSetMatrixPreallocateSkip(s->da, PETSC_TRUE));
+  PetscCall(DMCreateMatrix(s->da, A));
+  PetscCall(DMSetMatrixPreallocateSkip(s->da, PETSC_FALSE));
+  PetscCall(PetscMalloc2(2 * s->nowned, &d, 2 * s->nowned, &f));
+  for (PetscInt j = o->ys; j < o->ys + o->ym; j++)
+    for (PetscInt i = o->xs; i < o->xs + o->xm; i++, r += 2) {
+      static const PetscInt di[9] = {0, -1, 1, 0, 0, -2, 2, 0, 0}, dj[9] = {0, 0, 0, -1, 1, 0, 0, -2, 2};
+      d[r] = f[r] = d[r + 1] = f[r + 1] = 0;
+      for (PetscInt k = 0; k < 9; k++) {
+        const PetscInt  ci = i + di[k], cj = j + dj[k];
+        const PetscBool in = (PetscBool)(ci >= 0 && ci < o->mx && cj >= 0 && cj < o->my);
+        const PetscBool own = (PetscBool)(ci >= o->xs && ci < o->xs + o->xm && cj >= o->ys && cj < o->ys + o->ym);
+        if (!in) continue;
+        /* temperature row: its temperature over all nine, its depletion over the first five;
+           depletion row: the depletion over the first five */
+        (own ? d : f)[r] += (k < 5) ? 2 : 1;
+        if (k < 5) (own ? d : f)[r + 1] += 1;
+      }
+      d[r + 1] += 1; /* the depletion row's own temperature */
+    }
+  PetscCall(MatXAIJSetPreallocation(*A, 1, d, f, NULL, NULL));
+  PetscCall(PetscFree2(d, f));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyNewtonSetUp(CFSteady s)
+{
+  KSP ksp;
+  PC  pc;
+
+  PetscFunctionBeginUser;
+  if (s->jacobian == CF_JACOBIAN_COLORING) PetscFunctionReturn(0); /* the SNES builds its own from the DM */
+  if (s->jacobian == CF_JACOBIAN_PICARD) {
+    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
+    PetscCall(DMCreateMatrix(s->da, &s->P));
+    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_FALSE));
+    PetscCall(SNESSetJacobian(s->snes, s->P, s->P, CFSteadyFormJacobian, s));
+    PetscFunctionReturn(0);
+  }
+  /* the analytic Jacobian inserts its whole pattern every time (zeros included), so the pattern
+     forms at the first assembly; the coloured differences need it in place before */
+  if (s->jacobian == CF_JACOBIAN_ANALYTIC) PetscCall(CreateAnalyticJacobian(s, &s->A));
+  else PetscCall(DMCreateMatrix(s->da, &s->A));
+  PetscCall(SNESSetJacobian(s->snes, s->A, s->A, CFSteadyFormJacobian, s));
+  PetscCall(CFSchurCreate(s, &s->schur));
+  PetscCall(SNESGetKSP(s->snes, &ksp));
+  PetscCall(KSPGetPC(ksp, &pc));
+  PetscCall(PCShellSetContext(pc, s->schur));
+  PetscFunctionReturn(0);
+}
+
+PetscErrorCode CFSteadyNewtonRelease(CFSteady s)
+{
+  PetscFunctionBeginUser;
+  /* the SNES drops its references to the matrices and its (Krylov) work vectors */
+  PetscCall(SNESReset(s->snes));
+  PetscCall(MatDestroy(&s->A));
+  PetscCall(MatDestroy(&s->P));
+  PetscCall(CFSchurDestroy(&s->schur));
+  PetscFunctionReturn(0);
+}

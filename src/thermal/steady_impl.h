@@ -135,6 +135,10 @@ void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCe
 /* The Jacobian into J (analytic, or by coloured differences), its first-order five-point
    approximation into P (jacobian.c). */
 PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ctx);
+/* The Newton step's matrices and preconditioner, made for a solve and released after it, so
+   that output and post-processing do not add to the solver's peak memory (jacobian.c). */
+PetscErrorCode CFSteadyNewtonSetUp(CFSteady s);
+PetscErrorCode CFSteadyNewtonRelease(CFSteady s);
 /* The rows of the five-point approximation (jacobian.c), scaled as the residual. */
 void CFSteadyApproximateEnergyRow(const CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscInt i, PetscInt j, CFJacRow *r);
 void CFSteadyDepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, PetscInt i, PetscInt j, PetscReal Feq, PetscReal dFeq, PetscBool decoupled, CFJacRow *r);
