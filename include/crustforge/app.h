@@ -22,6 +22,10 @@ PETSC_EXTERN int CFExitStatus(PetscErrorCode ierr);
    alone failed). */
 PETSC_EXTERN void CFReportError(const char prog[], PetscErrorCode ierr);
 
+/* Extend the heap by this rank's share of the run's expected peak memory on transparent huge
+   pages, before the solver allocates (heap.c). Collective. */
+PETSC_EXTERN PetscErrorCode CFHeapReserve(MPI_Comm comm, const CFConfig *cfg);
+
 /* Create cfg->output_dir (and parents).  Refuses a directory that already holds files unless
    output.overwrite is set, and a path that is not a directory. Collective. */
 PETSC_EXTERN PetscErrorCode CFOutputDirPrepare(MPI_Comm comm, const CFConfig *cfg);

@@ -92,6 +92,9 @@ typedef struct {
   PetscBool output_figures;
 } CFConfig;
 
+/* Bytes a one-rank steady run of cfg's grid takes at its peak (measured; resources.c). */
+PETSC_EXTERN double CFConfigPeakMemory(const CFConfig *cfg);
+
 /* Insert SCENARIO (YAML) into the options database under the command line (argc/argv as given
    to main, so command-line values win), read and validate every key, and fill cfg.
    Bad input fails with PETSC_ERR_USER_INPUT and a one-line message naming the key. */

@@ -147,6 +147,7 @@ PetscErrorCode CFRunSteady(MPI_Comm comm, const CFConfig *cfg)
   PetscFunctionBeginUser;
   PetscCall(CFConfigView(cfg, PETSC_VIEWER_STDOUT_(comm)));
   PetscCall(CFOutputDirPrepare(comm, cfg));
+  PetscCall(CFHeapReserve(comm, cfg));
   PetscCall(PushStage("Flow and solver set-up"));
   PetscCall(CFSteadyCreate(comm, cfg, &s));
   PetscCall(PetscLogStagePop());

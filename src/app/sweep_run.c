@@ -137,6 +137,12 @@ PetscErrorCode CFRunSweep(MPI_Comm comm, const char file[], int argc, char **arg
   PetscCall(CFSweepRecordPrepare(comm, &sw, &resumed));
   PetscCallMPI(MPI_Comm_split(comm, (PetscMPIInt)g, rank, &group));
   PetscCallMPI(MPI_Comm_rank(group, &grank));
+  { /* the heap for the largest grid among the cases */
+    PetscInt big = 0;
+    for (PetscInt c = 1; c < sw.ncases; c++)
+      if (CFConfigPeakMemory(&sw.cases[c]) > CFConfigPeakMemory(&sw.cases[big])) big = c;
+    PetscCall(CFHeapReserve(group, sw.ncases ? &sw.cases[big] : &sw.base));
+  }
   PetscCall(PetscPrintf(comm, "sweep %s: %d cases, %d group%s of %d rank%s, %s\n", file, (int)sw.ncases, (int)ngroups, ngroups > 1 ? "s" : "", (int)sw.ranks_per_case, sw.ranks_per_case > 1 ? "s" : "", resumed ? "resuming from the record in output.dir" : "a new record in output.dir"));
   for (PetscInt k = 0; k < sw.naxes; k++) { /* C's %g: PETSc's writes 10 as "10." */
     char line[256];

@@ -152,6 +152,7 @@ PetscErrorCode CFRunTransient(MPI_Comm comm, const CFConfig *cfg)
 
   PetscFunctionBeginUser;
   PetscCall(CFConfigView(cfg, PETSC_VIEWER_STDOUT_(comm)));
+  PetscCall(CFHeapReserve(comm, cfg));
   PetscCall(CFTransientCreate(comm, cfg, &tr)); /* checks the time and history keys */
   PetscCall(CFOutputDirPrepare(comm, cfg));
   PetscCall(CFTransientSetInitialState(tr));
@@ -174,6 +175,7 @@ PetscErrorCode CFResumeTransient(MPI_Comm comm, const char checkpoint[], int arg
 
   PetscFunctionBeginUser;
   PetscCall(CFCheckpointReadConfig(comm, checkpoint, argc, argv, 3, &cfg));
+  PetscCall(CFHeapReserve(comm, &cfg));
   PetscCall(CFTransientCreate(comm, &cfg, &tr));
   PetscCall(CFTransientCheckpointLoad(tr, checkpoint));
   PetscCall(CFTransientGetTime(tr, &t, &step, NULL));

@@ -13,6 +13,8 @@
 #define CF_BYTES_PER_CELL 2000.0
 #define CF_BYTES_FIXED    60.0e6
 
+double CFConfigPeakMemory(const CFConfig *cfg) { return CF_BYTES_FIXED + CF_BYTES_PER_CELL * (double)cfg->nx * (double)cfg->nz; }
+
 PetscErrorCode CFConfigCheckMemory(MPI_Comm comm, const CFConfig *cfg)
 {
   MPI_Comm    node;
@@ -29,7 +31,7 @@ PetscErrorCode CFConfigCheckMemory(MPI_Comm comm, const CFConfig *cfg)
   if (!noderank && pages > 0 && page > 0) mine = (double)pages * (double)page;
   PetscCallMPI(MPI_Allreduce(&mine, &have, 1, MPI_DOUBLE, MPI_SUM, comm));
   if (have <= 0) PetscFunctionReturn(0); /* unknown: do not guess */
-  need = CF_BYTES_FIXED + CF_BYTES_PER_CELL * cells;
+  need = CFConfigPeakMemory(cfg);
   snprintf(sp, sizeof(sp), "%g", (double)CFMToKm(cfg->spacing));
   PetscCheck(need <= have, comm, PETSC_ERR_USER_INPUT, "grid.spacing: %s km needs about %.4g GB (%.4g million cells), this machine has %.3g GB", sp, need / 1e9, cells / 1e6, have / 1e9);
   PetscFunctionReturn(0);
