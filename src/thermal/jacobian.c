@@ -89,7 +89,7 @@ static void EnergyRow(const CFSteady s, const DMDALocalInfo *info, const CFCellS
     const PetscReal h = 1e-3, xc = (i + 0.5) * rc->dx, zc = (j + 0.5) * rc->dz, T = x[j][i].T;
     CFJacRowAdd(r, i, j, 0, -(rc->source(xc, zc, T + h, rc->sctx) - rc->source(xc, zc, T - h, rc->sctx)) / (2.0 * h) * rc->dx * rc->dz);
   }
-  for (PetscInt k = 0; k < r->n; k++) r->v[k] /= rc->energy_scale;
+  for (PetscInt k = 0; k < CF_JAC_SLOTS; k++) r->s[k] /= rc->energy_scale;
 }
 
 /* Depletion row: F_P - max(F_eq(T_P), F_up(F of the upstream neighbours)); exact on its branch. */
@@ -128,14 +128,15 @@ static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCe
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
       MatStencil row = {.i = i, .j = j, .k = 0, .c = 0};
-      CFJacRow   r   = {.n = 0};
+      CFJacRow   r;
+      CFJacRowInit(&r, i, j);
       EnergyRow(s, info, x, i, j, exact, &r);
-      CFJacRowSort(&r);
+      CFJacRowPack(&r);
       PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
-      r.n   = 0;
       row.c = 1;
+      CFJacRowInit(&r, i, j);
       CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->jacobian == CF_JACOBIAN_PICARD && !exact), &r);
-      CFJacRowSort(&r);
+      CFJacRowPack(&r);
       PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
     }
   PetscCall(MatAssemblyBegin(M, MAT_FINAL_ASSEMBLY));

@@ -96,8 +96,10 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
   /* the depletion rows first: the temperature rows need their neighbours' */
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
-      CFJacRow r = {.n = 0};
+      CFJacRow r;
+      CFJacRowInit(&r, i, j);
       CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], PETSC_FALSE, &r);
+      CFJacRowPack(&r);
       for (PetscInt k = 0; k < 5; k++) c->fw[5 * n + k] = 0.0;
       c->ft[n] = 0.0;
       for (PetscInt e = 0; e < r.n; e++) {
@@ -108,9 +110,12 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
   n = 0; /* every row inserts its whole pattern: no zeroing needed */
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
-      CFJacRow   r = {.n = 0}, t = {.n = 0};
+      CFJacRow   r, t;
       MatStencil row = {.i = i, .j = j, .k = 0, .c = 0};
+      CFJacRowInit(&r, i, j);
+      CFJacRowInit(&t, i, j);
       CFSteadyApproximateEnergyRow(s, info, x, i, j, &r);
+      CFJacRowPack(&r);
       for (PetscInt k = 0; k < 5; k++) c->tf[5 * n + k] = 0.0;
       for (PetscInt e = 0; e < r.n; e++) {
         const PetscInt k = Slot(i, j, r.col[e].i, r.col[e].j);
@@ -122,7 +127,7 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
           if (m >= 0) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, -r.v[e] * c->ft[m] / c->fw[5 * m]);
         }
       }
-      CFJacRowSort(&t);
+      CFJacRowPack(&t);
       PetscCall(MatSetValuesStencil(c->S, 1, &row, t.n, t.col, t.v, INSERT_VALUES));
     }
   PetscCall(MatAssemblyBegin(c->S, MAT_FINAL_ASSEMBLY));

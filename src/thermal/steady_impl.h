@@ -2,6 +2,7 @@
 #ifndef CRUSTFORGE_STEADY_IMPL_H
 #define CRUSTFORGE_STEADY_IMPL_H
 
+#include <assert.h>
 #include <crustforge/steady.h>
 
 /* Corner stream function over a rank's ghosted patch; face fluxes are its differences. */
@@ -22,44 +23,62 @@ typedef struct {
 /* Face conductivity between two cells. */
 static inline PetscReal CFHarmonicMean(PetscReal a, PetscReal b) { return 2.0 * a * b / (a + b); }
 
-/* One assembled Jacobian row being built: columns as DMDA stencils, repeated columns summed.
-   Sixteen covers the widest row (nine temperatures of the width-2 star, five depletions). */
+/* One assembled Jacobian row being built around its cell (i0, j0).  Values accumulate by slot,
+   one for each column a row can have: the temperatures of the width-2 star and the depletions of
+   the five-point star, numbered in the grid's row-major order (z, then x, then field) as the
+   matrix stores them, so adding is an index and no search, and CFJacRowPack lists the slots
+   added to, in order, as DMDA stencils (col, v, n): a first assembly then appends instead of
+   shifting every entry of the row. */
+#define CF_JAC_SLOTS 14
 typedef struct {
-  MatStencil  col[16];
-  PetscScalar v[16];
+  PetscInt    i0, j0;
+  PetscScalar s[CF_JAC_SLOTS];
+  PetscInt    used; /* bit k: slot k was added to */
+  MatStencil  col[CF_JAC_SLOTS];
+  PetscScalar v[CF_JAC_SLOTS];
   PetscInt    n;
 } CFJacRow;
 
-static inline void CFJacRowAdd(CFJacRow *r, PetscInt i, PetscInt j, PetscInt c, PetscScalar v)
+/* slot -> offset (dj, di) and field, and [dj + 2][di + 2][field] -> slot (-1: none) */
+static const PetscInt    CFJacSlotDJ[CF_JAC_SLOTS] = {-2, -1, -1, 0, 0, 0, 0, 0, 0, 0, 0, 1, 1, 2};
+static const PetscInt    CFJacSlotDI[CF_JAC_SLOTS] = {0, 0, 0, -2, -1, -1, 0, 0, 1, 1, 2, 0, 0, 0};
+static const PetscInt    CFJacSlotC[CF_JAC_SLOTS]  = {0, 0, 1, 0, 0, 1, 0, 1, 0, 1, 0, 0, 1, 0};
+static const signed char CFJacSlotOf[5][5][2]      = {
+  {{-1, -1}, {-1, -1}, {0, -1}, {-1, -1}, {-1, -1}},
+  {{-1, -1}, {-1, -1}, {1, 2}, {-1, -1}, {-1, -1}},
+  {{3, -1}, {4, 5}, {6, 7}, {8, 9}, {10, -1}},
+  {{-1, -1}, {-1, -1}, {11, 12}, {-1, -1}, {-1, -1}},
+  {{-1, -1}, {-1, -1}, {13, -1}, {-1, -1}, {-1, -1}},
+};
+
+static inline void CFJacRowInit(CFJacRow *r, PetscInt i, PetscInt j)
 {
-  for (PetscInt k = 0; k < r->n; k++)
-    if (r->col[k].i == i && r->col[k].j == j && r->col[k].c == c) {
-      r->v[k] += v;
-      return;
-    }
-  r->col[r->n].i = i;
-  r->col[r->n].j = j;
-  r->col[r->n].k = 0;
-  r->col[r->n].c = c;
-  r->v[r->n++]   = v;
+  r->i0   = i;
+  r->j0   = j;
+  r->used = 0;
+  r->n    = 0;
+  for (PetscInt k = 0; k < CF_JAC_SLOTS; k++) r->s[k] = 0.0;
 }
 
-/* Columns in the grid's row-major order (z, then x, then field), as the matrix stores them: a
-   first assembly then appends instead of shifting every entry of the row. */
-static inline void CFJacRowSort(CFJacRow *r)
+static inline void CFJacRowAdd(CFJacRow *r, PetscInt i, PetscInt j, PetscInt c, PetscScalar v)
 {
-  for (PetscInt a = 1; a < r->n; a++) {
-    const MatStencil  c = r->col[a];
-    const PetscScalar v = r->v[a];
-    PetscInt          b = a - 1;
-    while (b >= 0 && (r->col[b].j > c.j || (r->col[b].j == c.j && (r->col[b].i > c.i || (r->col[b].i == c.i && r->col[b].c > c.c))))) {
-      r->col[b + 1] = r->col[b];
-      r->v[b + 1]   = r->v[b];
-      b--;
+  const PetscInt k = CFJacSlotOf[j - r->j0 + 2][i - r->i0 + 2][c];
+  assert(k >= 0); /* a column outside the stencil is a bug in the caller */
+  r->s[k] += v;
+  r->used |= (PetscInt)1 << k;
+}
+
+static inline void CFJacRowPack(CFJacRow *r)
+{
+  r->n = 0;
+  for (PetscInt k = 0; k < CF_JAC_SLOTS; k++)
+    if (r->used >> k & 1) {
+      r->col[r->n].i = r->i0 + CFJacSlotDI[k];
+      r->col[r->n].j = r->j0 + CFJacSlotDJ[k];
+      r->col[r->n].k = 0;
+      r->col[r->n].c = CFJacSlotC[k];
+      r->v[r->n++]   = r->s[k];
     }
-    r->col[b + 1] = c;
-    r->v[b + 1]   = v;
-  }
 }
 
 /* What the cell residuals need, in SI. */
