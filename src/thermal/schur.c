@@ -56,7 +56,18 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
     PetscCall(DMSetUp(c->da1));
   }
   PetscCall(PetscMalloc3(5 * c->n, &c->fw, 5 * c->n, &c->tf, c->n, &c->ft));
-  PetscCall(DMCreateMatrix(c->da1, &c->S));
+  { /* the five-point star, exactly; every assembly inserts all of it */
+    const DMDALocalInfo *o = &s->owned;
+    PetscInt            *d, *f, n = 0;
+    PetscCall(PetscMalloc2(c->n, &d, c->n, &f));
+    for (PetscInt j = o->ys; j < o->ys + o->ym; j++)
+      for (PetscInt i = o->xs; i < o->xs + o->xm; i++, n++) {
+        d[n] = 1 + (i > o->xs) + (i + 1 < o->xs + o->xm) + (j > o->ys) + (j + 1 < o->ys + o->ym);
+        f[n] = (i == o->xs && i > 0) + (i + 1 == o->xs + o->xm && i + 1 < o->mx) + (j == o->ys && j > 0) + (j + 1 == o->ys + o->ym && j + 1 < o->my);
+      }
+    PetscCall(CFSteadyCreateMatrix(c->da1, d, f, &c->S));
+    PetscCall(PetscFree2(d, f));
+  }
   PetscCall(DMCreateGlobalVector(c->da1, &c->b));
   PetscCall(VecDuplicate(c->b, &c->t));
   PetscCall(PCCreate(s->comm, &c->amg));
