@@ -58,6 +58,17 @@ run "2 ranks" 2 1 1
 finest=$(echo $SPACINGS | awk '{print $NF}')
 [ "$finest" = 1 ] || run "2 ranks" 2 1 "$finest"
 run "2 threads" 1 2 1
+# 1 against 2 ranks at the finest spacing in alternation, so that both see the same machine: the
+# median of the per-pair ratios
+k=1
+: >"$TMP/pairs"
+while [ $k -le "$REPEAT" ]; do
+  a=$(once pair1 1 1 "$finest" $k)
+  b=$(once pair2 2 1 "$finest" $k)
+  echo "$a $b" | awk '{print $1 / $2, $1, $2}' >>"$TMP/pairs"
+  k=$((k + 1))
+done
+sort -n "$TMP/pairs" | awk -v n="$REPEAT" -v h="$finest" '{r[NR]=$0} END{split(r[int((n+1)/2)], m, " "); split(r[1], lo, " "); split(r[n], hi, " "); printf "%-10s h=%-5s 2 ranks over 1, alternated: %.2f times faster (median pair %.2f s / %.2f s; ratios %.2f-%.2f)\n", "speedup", h, m[1], m[2], m[3], lo[1], hi[1]}'
 # the 15-rate sweep at 1 km on 2 ranks (2 groups of 1 rank)
 SWEEP=$(dirname "$0")/sweep15.yaml
 : >"$TMP/sweep.walls"
