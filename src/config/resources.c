@@ -7,10 +7,10 @@
 
 /* Peak resident memory of a whole steady run (solve, output, tables; figures off), one rank,
    measured with /usr/bin/time -v (tests/bench/steady.sh) on the default 400 x 200 km grid:
-   spacing 2 km (20 000 cells) 84 MB, 1 km (80 000) 190 MB, 0.5 km (320 000) 606 MB, 0.25 km
-   (1 280 000) 2.28 GB, i.e. about 50 MB to start plus 1.7 KB per added cell.  The figure taken
-   is 2 KB per cell plus 60 MB (measured, rounded up). */
-#define CF_BYTES_PER_CELL 2000.0
+   spacing 8 km (1 250 cells) 50 MB, 2 km (20 000) 73 MB, 1 km (80 000) 147 MB, 0.5 km (320 000)
+   442 MB, 0.25 km (1 280 000) 1.63 GB, i.e. about 48 MB to start plus 1.25 kB per added cell.
+   The figure taken is 1.4 kB per cell plus 60 MB (measured, rounded up). */
+#define CF_BYTES_PER_CELL 1400.0
 #define CF_BYTES_FIXED    60.0e6
 
 double CFConfigPeakMemory(const CFConfig *cfg) { return CF_BYTES_FIXED + CF_BYTES_PER_CELL * (double)cfg->nx * (double)cfg->nz; }
