@@ -7,9 +7,6 @@
    Virtual until touched: the resident size does not grow.  Measured in DEVELOPERS.md. */
 #include <crustforge/app.h>
 
-/* mallopt takes an int: the trim threshold caps the range that stays in the heap */
-#define CF_HEAP_MAX ((size_t)3 << 29) /* 1.5 GiB */
-
 #if defined(__linux__) && defined(__GLIBC__) && !defined(__SANITIZE_ADDRESS__)
   #include <malloc.h>
   #include <stdint.h>
@@ -21,9 +18,9 @@ static void Reserve(size_t bytes)
   void           *p;
 
   /* blocks below 32 MB from the heap rather than from mappings of their own (glibc's maximum),
-     and no trimming of its top below the reserved range */
+     and the heap never trimmed (-1), or freeing the reservation would hand it straight back */
   (void)mallopt(M_MMAP_THRESHOLD, 32 << 20);
-  (void)mallopt(M_TRIM_THRESHOLD, (int)CF_HEAP_MAX + (64 << 20));
+  (void)mallopt(M_TRIM_THRESHOLD, -1);
   /* with mappings off, one block of the reserved size extends the heap itself */
   (void)mallopt(M_MMAP_MAX, 0);
   p = malloc(bytes);
@@ -46,8 +43,9 @@ PetscErrorCode CFHeapReserve(MPI_Comm comm, const CFConfig *cfg)
 
   PetscFunctionBeginUser;
   PetscCallMPI(MPI_Comm_size(comm, &size));
-  /* this rank's share of the run's peak, with room to spare (a reservation costs no memory) */
+  /* this rank's share of the run's peak, with room to spare (a reservation costs no memory
+     until touched; one the system refuses is skipped) */
   bytes = 1.25 * CFConfigPeakMemory(cfg) / size;
-  Reserve((size_t)PetscMin(bytes, (double)CF_HEAP_MAX));
+  Reserve((size_t)bytes);
   PetscFunctionReturn(0);
 }
