@@ -172,7 +172,7 @@ PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ptr)
   PetscFunctionReturn(0);
 }
 
-PetscErrorCode CFSteadyCreateMatrix(DM da, MatType type, const PetscInt d[], const PetscInt o[], Mat *M)
+PetscErrorCode CFSteadyCreateMatrix(DM da, const PetscInt d[], const PetscInt o[], Mat *M)
 {
   PetscInt               n, N, dof, gxs, gys, gxm, gym;
   ISLocalToGlobalMapping map;
@@ -190,7 +190,7 @@ PetscErrorCode CFSteadyCreateMatrix(DM da, MatType type, const PetscInt d[], con
   PetscCall(MatCreate(PetscObjectComm((PetscObject)da), M));
   PetscCall(MatSetSizes(*M, n, n, N, N));
   PetscCall(MatSetBlockSize(*M, dof)); /* as the DMDA's map; the counts stay per point row */
-  PetscCall(MatSetType(*M, type));
+  PetscCall(MatSetType(*M, MATAIJ));
   PetscCall(MatSeqAIJSetPreallocation(*M, 0, d));
   PetscCall(MatMPIAIJSetPreallocation(*M, 0, d, 0, o));
   PetscCall(DMGetLocalToGlobalMapping(da, &map));
@@ -231,7 +231,7 @@ static PetscErrorCode CreateAnalyticJacobian(CFSteady s, Mat *A)
       }
       d[r + 1] += 1; /* the depletion row's own temperature */
     }
-  PetscCall(CFSteadyCreateMatrix(s->da, MATAIJ, d, f, A));
+  PetscCall(CFSteadyCreateMatrix(s->da, d, f, A));
   PetscCall(PetscFree2(d, f));
   PetscFunctionReturn(0);
 }

@@ -65,10 +65,7 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
         d[n] = 1 + (i > o->xs) + (i + 1 < o->xs + o->xm) + (j > o->ys) + (j + 1 < o->ys + o->ym);
         f[n] = (i == o->xs && i > 0) + (i + 1 == o->xs + o->xm && i + 1 < o->mx) + (j == o->ys && j > 0) + (j + 1 == o->ys + o->ym && j + 1 < o->my);
       }
-    /* the parallel format even on one rank: from a sequential matrix, hypre's copy (at every
-       rebuild of the hierarchy) took ten times as long and the hierarchy's set-up twice as long
-       (0.3 against 0.03 s and 1.8 against 0.9 s at 0.25 km; DEVELOPERS.md) */
-    PetscCall(CFSteadyCreateMatrix(c->da1, MATMPIAIJ, d, f, &c->S));
+    PetscCall(CFSteadyCreateMatrix(c->da1, d, f, &c->S));
     PetscCall(PetscFree2(d, f));
   }
   PetscCall(DMCreateGlobalVector(c->da1, &c->b));

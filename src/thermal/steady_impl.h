@@ -154,11 +154,10 @@ void CFSteadyConductivityPatch(CFSteady s, const DMDALocalInfo *info, const CFCe
 /* The Jacobian into J (analytic, or by coloured differences), its first-order five-point
    approximation into P (jacobian.c). */
 PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ctx);
-/* A matrix of an AIJ type over the layout of da (dof-block rows in its order), preallocated
-   with d and o entries per row in the diagonal and off-diagonal blocks, that takes
-   MatSetValuesStencil and MatSetValuesLocal with da's ghosted indices; a first assembly forms its
-   pattern (jacobian.c). */
-PetscErrorCode CFSteadyCreateMatrix(DM da, MatType type, const PetscInt d[], const PetscInt o[], Mat *M);
+/* An AIJ matrix over the layout of da (dof-block rows in its order), preallocated with d and o
+   entries per row in the diagonal and off-diagonal blocks, that takes MatSetValuesStencil and
+   MatSetValuesLocal with da's ghosted indices; a first assembly forms its pattern (jacobian.c). */
+PetscErrorCode CFSteadyCreateMatrix(DM da, const PetscInt d[], const PetscInt o[], Mat *M);
 /* The Newton step's matrices and preconditioner, made for a solve and released after it, so
    that output and post-processing do not add to the solver's peak memory (jacobian.c). */
 PetscErrorCode CFSteadyNewtonSetUp(CFSteady s);
