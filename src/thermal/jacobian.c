@@ -174,21 +174,15 @@ PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ptr)
 
 PetscErrorCode CFSteadyCreateMatrix(DM da, const PetscInt d[], const PetscInt o[], Mat *M)
 {
-  PetscInt               n, N, dof, gxs, gys, gxm, gym;
+  PetscInt               mx, my, dof, xm, ym, gxs, gys, gxm, gym;
   ISLocalToGlobalMapping map;
 
   PetscFunctionBeginUser;
-  PetscCall(DMDAGetInfo(da, NULL, NULL, NULL, NULL, NULL, NULL, NULL, &dof, NULL, NULL, NULL, NULL, NULL));
+  PetscCall(DMDAGetInfo(da, NULL, &mx, &my, NULL, NULL, NULL, NULL, &dof, NULL, NULL, NULL, NULL, NULL));
+  PetscCall(DMDAGetCorners(da, NULL, NULL, NULL, &xm, &ym, NULL));
   PetscCall(DMDAGetGhostCorners(da, &gxs, &gys, NULL, &gxm, &gym, NULL));
-  {
-    Vec g; /* the layout's sizes */
-    PetscCall(DMGetGlobalVector(da, &g));
-    PetscCall(VecGetLocalSize(g, &n));
-    PetscCall(VecGetSize(g, &N));
-    PetscCall(DMRestoreGlobalVector(da, &g));
-  }
   PetscCall(MatCreate(PetscObjectComm((PetscObject)da), M));
-  PetscCall(MatSetSizes(*M, n, n, N, N));
+  PetscCall(MatSetSizes(*M, xm * ym * dof, xm * ym * dof, mx * my * dof, mx * my * dof));
   PetscCall(MatSetBlockSize(*M, dof)); /* as the DMDA's map; the counts stay per point row */
   PetscCall(MatSetType(*M, MATAIJ));
   PetscCall(MatSeqAIJSetPreallocation(*M, 0, d));

@@ -11,7 +11,6 @@
 #include "steady_impl.h"
 
 struct _p_CFSchur {
-  DM         da1;          /* scalar layout of the temperature, five-point stencil */
   Mat        S;            /* the Schur complement approximation */
   PC         amg;
   Vec        b, t;         /* right side and solution of the temperature step */
@@ -46,15 +45,6 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
   c->xm  = s->owned.xm;
   c->ym  = s->owned.ym;
   c->n   = s->nowned;
-  {
-    /* the solver's layout with a five-point stencil: the matrix holds just the pattern it needs */
-    const PetscInt *lx, *ly;
-    PetscInt        px, py;
-    PetscCall(DMDAGetInfo(s->da, NULL, NULL, NULL, NULL, &px, &py, NULL, NULL, NULL, NULL, NULL, NULL, NULL));
-    PetscCall(DMDAGetOwnershipRanges(s->da, &lx, &ly, NULL));
-    PetscCall(DMDACreate2d(s->comm, DM_BOUNDARY_NONE, DM_BOUNDARY_NONE, DMDA_STENCIL_STAR, s->cfg.nx, s->cfg.nz, px, py, 1, 1, lx, ly, &c->da1));
-    PetscCall(DMSetUp(c->da1));
-  }
   PetscCall(PetscMalloc3(5 * c->n, &c->fw, 5 * c->n, &c->tf, c->n, &c->ft));
   { /* the five-point star, exactly; every assembly inserts all of it */
     const DMDALocalInfo *o = &s->owned;
@@ -65,10 +55,10 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
         d[n] = 1 + (i > o->xs) + (i + 1 < o->xs + o->xm) + (j > o->ys) + (j + 1 < o->ys + o->ym);
         f[n] = (i == o->xs && i > 0) + (i + 1 == o->xs + o->xm && i + 1 < o->mx) + (j == o->ys && j > 0) + (j + 1 == o->ys + o->ym && j + 1 < o->my);
       }
-    PetscCall(CFSteadyCreateMatrix(c->da1, d, f, &c->S));
+    PetscCall(CFSteadyCreateMatrix(s->da1, d, f, &c->S)); /* the solver's scalar layout */
     PetscCall(PetscFree2(d, f));
   }
-  PetscCall(DMCreateGlobalVector(c->da1, &c->b));
+  PetscCall(DMCreateGlobalVector(s->da1, &c->b));
   PetscCall(VecDuplicate(c->b, &c->t));
   PetscCall(PCCreate(s->comm, &c->amg));
   PetscCall(PCSetType(c->amg, PCHYPRE));
@@ -92,7 +82,6 @@ PetscErrorCode CFSchurDestroy(CFSchur *pc)
   PetscCall(VecDestroy(&c->b));
   PetscCall(VecDestroy(&c->t));
   PetscCall(MatDestroy(&c->S));
-  PetscCall(DMDestroy(&c->da1));
   PetscCall(PetscFree3(c->fw, c->tf, c->ft));
   PetscCall(PetscFree(*pc));
   PetscFunctionReturn(0);
