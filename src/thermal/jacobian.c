@@ -118,26 +118,57 @@ void CFSteadyDepletionRow(const CFResidualCtx *rc, const CFCellState *const *x, 
 
 void CFSteadyApproximateEnergyRow(const CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscInt i, PetscInt j, CFJacRow *r) { EnergyRow(s, info, x, i, j, PETSC_FALSE, r); }
 
+PetscErrorCode CFSteadySetRow(CFSteady s, Mat M, PetscBool formed, PetscInt dof, PetscInt c, unsigned short pattern[], CFJacRow *r)
+{
+  const DMDALocalInfo *o    = &s->owned;
+  const PetscInt       row  = ((r->j0 - o->ys) * o->xm + (r->i0 - o->xs)) * dof + c;
+  const PetscInt       grow = s->gpoint[(r->j0 - o->gys) * o->gxm + (r->i0 - o->gxs)] * dof + c;
+  PetscInt             g[CF_JAC_SLOTS];
+
+  PetscFunctionBeginUser;
+  if (!formed) pattern[row] = (unsigned short)r->used;
+  PetscCheck(!(r->used & ~(PetscInt)pattern[row]), PETSC_COMM_SELF, PETSC_ERR_PLIB, "Jacobian row of cell (%" PetscInt_FMT ", %" PetscInt_FMT ") has an entry its first assembly did not", r->i0, r->j0);
+  CFJacRowPackMask(r, pattern[row]);
+  /* the slots follow the global columns within a rank's block; a row that reaches another
+     rank's cells is sorted (insertion sort) */
+  if (formed && (r->i0 - 2 >= o->xs || o->xs == 0) && (r->i0 + 2 < o->xs + o->xm || o->xs + o->xm == o->mx) && (r->j0 - 2 >= o->ys || o->ys == 0) && (r->j0 + 2 < o->ys + o->ym || o->ys + o->ym == o->my)) {
+    PetscCall(MatSetValuesRow(M, grow, r->v));
+    PetscFunctionReturn(0);
+  }
+  for (PetscInt e = 0; e < r->n; e++) {
+    const PetscInt    ge = s->gpoint[(r->col[e].j - o->gys) * o->gxm + (r->col[e].i - o->gxs)] * dof + r->col[e].c;
+    const PetscScalar ve = r->v[e];
+    PetscInt          k  = e;
+    for (; k > 0 && g[k - 1] > ge; k--) {
+      g[k]    = g[k - 1];
+      r->v[k] = r->v[k - 1];
+    }
+    g[k]    = ge;
+    r->v[k] = ve;
+  }
+  if (formed) PetscCall(MatSetValuesRow(M, grow, r->v));
+  else PetscCall(MatSetValues(M, 1, &grow, r->n, g, r->v, INSERT_VALUES));
+  PetscFunctionReturn(0);
+}
+
 /* The rows of every owned cell into M: exact, or the five-point approximation. */
 static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscBool exact, Mat M)
 {
-  PetscInt n = 0;
+  PetscInt  n = 0;
+  PetscBool formed;
 
   PetscFunctionBeginUser;
   /* every row inserts its whole pattern (zeros included), so the matrix needs no zeroing */
+  PetscCall(MatAssembled(M, &formed));
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
-      MatStencil row = {.i = i, .j = j, .k = 0, .c = 0};
-      CFJacRow   r;
+      CFJacRow r;
       CFJacRowInit(&r, i, j);
       EnergyRow(s, info, x, i, j, exact, &r);
-      CFJacRowPack(&r);
-      PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
-      row.c = 1;
+      PetscCall(CFSteadySetRow(s, M, formed, 2, 0, s->pattern, &r));
       CFJacRowInit(&r, i, j);
       CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->jacobian == CF_JACOBIAN_PICARD && !exact), &r);
-      CFJacRowPack(&r);
-      PetscCall(MatSetValuesStencil(M, 1, &row, r.n, r.col, r.v, INSERT_VALUES));
+      PetscCall(CFSteadySetRow(s, M, formed, 2, 1, s->pattern, &r));
     }
   PetscCall(MatAssemblyBegin(M, MAT_FINAL_ASSEMBLY));
   PetscCall(MatAssemblyEnd(M, MAT_FINAL_ASSEMBLY));
@@ -237,10 +268,9 @@ PetscErrorCode CFSteadyNewtonSetUp(CFSteady s)
 
   PetscFunctionBeginUser;
   if (s->jacobian == CF_JACOBIAN_COLORING) PetscFunctionReturn(0); /* the SNES builds its own from the DM */
-  if (s->jacobian == CF_JACOBIAN_PICARD) {
-    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_TRUE));
-    PetscCall(DMCreateMatrix(s->da, &s->P));
-    PetscCall(DMSetMatrixPreallocateOnly(s->da, PETSC_FALSE));
+  PetscCall(PetscMalloc1(2 * s->nowned, &s->pattern));
+  if (s->jacobian == CF_JACOBIAN_PICARD) { /* the analytic pattern, its extra entries zero */
+    PetscCall(CreateAnalyticJacobian(s, &s->P));
     PetscCall(SNESSetJacobian(s->snes, s->P, s->P, CFSteadyFormJacobian, s));
     PetscFunctionReturn(0);
   }
@@ -263,6 +293,7 @@ PetscErrorCode CFSteadyNewtonRelease(CFSteady s)
   PetscCall(SNESReset(s->snes));
   PetscCall(MatDestroy(&s->A));
   PetscCall(MatDestroy(&s->P));
+  PetscCall(PetscFree(s->pattern));
   PetscCall(CFSchurDestroy(&s->schur));
   PetscFunctionReturn(0);
 }

@@ -19,6 +19,7 @@ struct _p_CFSchur {
   PetscBool  built;
   PetscInt   its_built;    /* GMRES iterations of the first solve with the hierarchy, -1 unknown */
   PetscReal *fw, *tf, *ft; /* per owned cell: depletion row on F (5 slots), energy row on F (5 slots), depletion row on T */
+  unsigned short *pattern; /* slots of each row of S at its first assembly (CFSteadySetRow) */
 };
 
 /* Slot of neighbour (ci, cj) of cell (i, j): the cell, left, right, above, below. */
@@ -45,7 +46,7 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
   c->xm  = s->owned.xm;
   c->ym  = s->owned.ym;
   c->n   = s->nowned;
-  PetscCall(PetscMalloc3(5 * c->n, &c->fw, 5 * c->n, &c->tf, c->n, &c->ft));
+  PetscCall(PetscMalloc4(5 * c->n, &c->fw, 5 * c->n, &c->tf, c->n, &c->ft, c->n, &c->pattern));
   { /* the five-point star, exactly; every assembly inserts all of it */
     const DMDALocalInfo *o = &s->owned;
     PetscInt            *d, *f, n = 0;
@@ -82,17 +83,37 @@ PetscErrorCode CFSchurDestroy(CFSchur *pc)
   PetscCall(VecDestroy(&c->b));
   PetscCall(VecDestroy(&c->t));
   PetscCall(MatDestroy(&c->S));
-  PetscCall(PetscFree3(c->fw, c->tf, c->ft));
+  PetscCall(PetscFree4(c->fw, c->tf, c->ft, c->pattern));
   PetscCall(PetscFree(*pc));
+  PetscFunctionReturn(0);
+}
+
+/* Building the hierarchy costs as much as several V-cycles, and the operator changes little
+   between Newton steps (the melting region moves by a cell or so): rebuild only for a new solve,
+   or once GMRES needs twice the iterations it did with a fresh one (measured in DEVELOPERS.md). */
+static PetscErrorCode NeedsRebuild(CFSteady s, PetscBool *rebuild)
+{
+  CFSchur  c   = s->schur;
+  PetscInt its = 0;
+  KSP      ksp;
+
+  PetscFunctionBeginUser;
+  PetscCall(SNESGetKSP(s->snes, &ksp));
+  if (c->built) PetscCall(KSPGetIterationNumber(ksp, &its));
+  if (c->built && c->its_built < 0) c->its_built = its;
+  *rebuild = (PetscBool)(!c->reuse || !c->built || its > 2 * PetscMax(c->its_built, 5));
   PetscFunctionReturn(0);
 }
 
 PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x)
 {
-  CFSchur  c = s->schur;
-  PetscInt n = 0;
+  CFSchur   c = s->schur;
+  PetscInt  n = 0;
+  PetscBool rebuild = PETSC_TRUE, formed;
 
   PetscFunctionBeginUser;
+  PetscCall(NeedsRebuild(s, &rebuild));
+  PetscCall(MatAssembled(c->S, &formed));
   /* the depletion rows first: the temperature rows need their neighbours' */
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
@@ -107,11 +128,12 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
         else c->ft[n] = r.v[e];
       }
     }
+  /* the coupling of the energy rows to the depletion always (the sweeps use it); S itself
+     only for a new hierarchy, since a kept one goes on with the copy hypre took at its set-up */
   n = 0; /* every row inserts its whole pattern: no zeroing needed */
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
     for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) {
-      CFJacRow   r, t;
-      MatStencil row = {.i = i, .j = j, .k = 0, .c = 0};
+      CFJacRow r, t;
       CFJacRowInit(&r, i, j);
       CFJacRowInit(&t, i, j);
       CFSteadyApproximateEnergyRow(s, info, x, i, j, &r);
@@ -127,30 +149,18 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
           if (m >= 0) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, -r.v[e] * c->ft[m] / c->fw[5 * m]);
         }
       }
-      CFJacRowPack(&t);
-      PetscCall(MatSetValuesStencil(c->S, 1, &row, t.n, t.col, t.v, INSERT_VALUES));
+      if (!rebuild) continue;
+      PetscCall(CFSteadySetRow(s, c->S, formed, 1, 0, c->pattern, &t));
     }
+  if (!rebuild) PetscFunctionReturn(0);
   PetscCall(MatAssemblyBegin(c->S, MAT_FINAL_ASSEMBLY));
   PetscCall(MatAssemblyEnd(c->S, MAT_FINAL_ASSEMBLY));
-  /* Building the hierarchy costs as much as several V-cycles, and the operator changes little
-     between Newton steps (the melting region moves by a cell or so): rebuild only for a new
-     solve, or once GMRES needs twice the iterations it did with a fresh one (measured in
-     DEVELOPERS.md). */
-  {
-    PetscInt its = 0;
-    KSP      ksp;
-    PetscCall(SNESGetKSP(s->snes, &ksp));
-    if (c->built) PetscCall(KSPGetIterationNumber(ksp, &its));
-    if (c->built && c->its_built < 0) c->its_built = its;
-    if (!c->reuse || !c->built || its > 2 * PetscMax(c->its_built, 5)) {
-      PetscCall(PCSetReusePreconditioner(c->amg, PETSC_FALSE));
-      PetscCall(PCSetOperators(c->amg, c->S, c->S));
-      PetscCall(PCSetUp(c->amg));
-      PetscCall(PCSetReusePreconditioner(c->amg, c->reuse));
-      c->built     = PETSC_TRUE;
-      c->its_built = -1;
-    }
-  }
+  PetscCall(PCSetReusePreconditioner(c->amg, PETSC_FALSE));
+  PetscCall(PCSetOperators(c->amg, c->S, c->S));
+  PetscCall(PCSetUp(c->amg));
+  PetscCall(PCSetReusePreconditioner(c->amg, c->reuse));
+  c->built     = PETSC_TRUE;
+  c->its_built = -1;
   PetscFunctionReturn(0);
 }
 

@@ -162,6 +162,11 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
   for (PetscInt j = info.ys, n = 0; j < info.ys + info.ym; j++)
     for (PetscInt i = info.xs; i < info.xs + info.xm; i++, n++) s->work_P[n] = CFPressure(&s->rc, (j + 0.5) * cfg->dz);
   PetscCall(PetscCalloc2(info.gxm * info.gym, &s->kcell, info.gxm * info.gym, &s->dkcell));
+  {
+    ISLocalToGlobalMapping map;
+    PetscCall(DMGetLocalToGlobalMapping(s->da, &map));
+    PetscCall(ISLocalToGlobalMappingGetBlockIndices(map, &s->gpoint));
+  }
 
   /* Newton-Krylov: GMRES on the analytic Jacobian, preconditioned by an assembled first-order
      approximation (jacobian.c); -steady_jacobian split uses coloured finite differences as the
@@ -222,8 +227,14 @@ PetscErrorCode CFSteadyDestroy(CFSteady *ps)
   if (!s) PetscFunctionReturn(0);
   PetscCall(SNESDestroy(&s->snes));
   PetscCall(CFSchurDestroy(&s->schur));
+  if (s->gpoint) {
+    ISLocalToGlobalMapping map;
+    PetscCall(DMGetLocalToGlobalMapping(s->da, &map));
+    PetscCall(ISLocalToGlobalMappingRestoreBlockIndices(map, &s->gpoint));
+  }
   PetscCall(MatDestroy(&s->P));
   PetscCall(MatDestroy(&s->A));
+  PetscCall(PetscFree(s->pattern));
   PetscCall(VecDestroy(&s->X));
   PetscCall(DMDestroy(&s->da1));
   PetscCall(DMDestroy(&s->da));

@@ -68,11 +68,12 @@ static inline void CFJacRowAdd(CFJacRow *r, PetscInt i, PetscInt j, PetscInt c, 
   r->used |= (PetscInt)1 << k;
 }
 
-static inline void CFJacRowPack(CFJacRow *r)
+/* Lists the slots of mask (a bit per slot) in order, zeros included. */
+static inline void CFJacRowPackMask(CFJacRow *r, PetscInt mask)
 {
   r->n = 0;
   for (PetscInt k = 0; k < CF_JAC_SLOTS; k++)
-    if (r->used >> k & 1) {
+    if (mask >> k & 1) {
       r->col[r->n].i = r->i0 + CFJacSlotDI[k];
       r->col[r->n].j = r->j0 + CFJacSlotDJ[k];
       r->col[r->n].k = 0;
@@ -80,6 +81,8 @@ static inline void CFJacRowPack(CFJacRow *r)
       r->v[r->n++]   = r->s[k];
     }
 }
+
+static inline void CFJacRowPack(CFJacRow *r) { CFJacRowPackMask(r, r->used); }
 
 /* What the cell residuals need, in SI. */
 typedef struct {
@@ -127,6 +130,8 @@ struct _p_CFSteady {
   DMDALocalInfo  owned; /* the layout work_* follow */
   PetscReal     *work_P, *work_T, *work_F, *work_dF;
   PetscReal     *kcell, *dkcell; /* conductivity and its temperature derivative over the ghosted patch */
+  const PetscInt *gpoint;        /* global number of every cell of the ghosted patch (the DMDA's block map) */
+  unsigned short *pattern;       /* slots of each row of A (or P) at its first assembly (CFSteadySetRow) */
 };
 
 /* Effective conductivity at a cell centre (hydrothermal enhancement included), and its
@@ -158,6 +163,12 @@ PetscErrorCode CFSteadyFormJacobian(SNES snes, Vec X, Mat J, Mat P, void *ctx);
    entries per row in the diagonal and off-diagonal blocks, that takes MatSetValuesStencil and
    MatSetValuesLocal with da's ghosted indices; a first assembly forms its pattern (jacobian.c). */
 PetscErrorCode CFSteadyCreateMatrix(DM da, const PetscInt d[], const PetscInt o[], Mat *M);
+/* Row r (field c of its cell) into M, a matrix of CFSteadyCreateMatrix over dof fields per cell,
+   by global indices in column order.  At the first assembly (formed false) it records the row's
+   slots in pattern (one entry per row, in owned order); later it passes the values of those
+   slots alone (zeros where one is unused now) to MatSetValuesRow, which skips PETSc's search for
+   every column (jacobian.c).  A slot outside the recorded ones is an error, as a new nonzero was. */
+PetscErrorCode CFSteadySetRow(CFSteady s, Mat M, PetscBool formed, PetscInt dof, PetscInt c, unsigned short pattern[], CFJacRow *r);
 /* The Newton step's matrices and preconditioner, made for a solve and released after it, so
    that output and post-processing do not add to the solver's peak memory (jacobian.c). */
 PetscErrorCode CFSteadyNewtonSetUp(CFSteady s);
