@@ -455,6 +455,27 @@ START_TEST(test_array_threads)
 }
 END_TEST
 
+/* Below its solidus every registered model gives exactly F = 0 and dF/dT = 0 (the definition of
+   the solidus, Katz et al. 2003), down to CF_SOLIDUS_MARGIN under it: the steady solver skips
+   colder cells on that contract.  Dry and wet, 0-8 GPa, with the models' defaults. */
+START_TEST(test_cold_is_exactly_zero)
+{
+  const double water[] = {0.0, 300.0};
+
+  for (PetscInt t = 0; t < CFMeltingTypeCount(); t++)
+    for (int w = 0; w < 2; w++) {
+      CFMeltingModel m = NewModel(CFMeltingTypeGet(t)->name, water[w]);
+      for (int k = 0; k <= 40; k++) {
+        const double P = 0.2 * k, Ts = SolidusC(m, P);
+        double       d = 1.0;
+        ck_assert_msg(MeltF(m, P, Ts - CF_SOLIDUS_MARGIN, &d) == 0.0 && d == 0.0, "%s, %g ppm: melt just below the solidus at %g GPa", CFMeltingTypeGet(t)->name, water[w], P);
+        ck_assert(MeltF(m, P, Ts - 200.0, &d) == 0.0 && d == 0.0);
+      }
+      FreeModel(&m);
+    }
+}
+END_TEST
+
 static Suite *MeltingSuite(void)
 {
   Suite *s     = suite_create("melting");
@@ -478,6 +499,7 @@ static Suite *MeltingSuite(void)
   tcase_add_test(water, test_hydrous_residual);
   tcase_add_test(lin, test_linear_by_hand);
   tcase_add_test(arr, test_array_threads);
+  tcase_add_test(arr, test_cold_is_exactly_zero);
   suite_add_tcase(s, katz);
   suite_add_tcase(s, water);
   suite_add_tcase(s, lin);

@@ -26,9 +26,14 @@ typedef struct {
   PetscReal (*solidus)(const PetscReal par[], PetscReal P, PetscReal water_ppm);
   PetscReal (*liquidus)(const PetscReal par[], PetscReal P, PetscReal water_ppm);
   /* Equilibrium melt fraction F in [0,1] and dF/dT (K-1) at (P, T, w).
-     Returns 0 on success, non-zero when no answer can be guaranteed (then F is NaN). */
+     Returns 0 on success, non-zero when no answer can be guaranteed (then F is NaN).
+     Below the solidus F and dF/dT are exactly 0: the steady solver takes them as 0 without a
+     call wherever T is more than CF_SOLIDUS_MARGIN below the solidus. */
   int (*melt_fraction)(const PetscReal par[], PetscReal P, PetscReal T, PetscReal water_ppm, PetscReal *F, PetscReal *dFdT);
 } CFMeltingType;
+
+/* K; far above the round-off between a model's solidus and its melt fraction */
+#define CF_SOLIDUS_MARGIN 1.0e-6
 
 /* The registered model called name, or NULL. */
 PETSC_EXTERN const CFMeltingType *CFMeltingTypeFind(const char name[]);

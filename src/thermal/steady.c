@@ -5,14 +5,34 @@
 
 PetscErrorCode CFSteadyEquilibriumMelt(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x)
 {
-  PetscInt n = 0;
+  const PetscInt n = info->xm * info->ym;
+  PetscInt       m = 0;
 
   PetscFunctionBeginUser;
-  /* work_P holds the owned cells' pressures of the solver's own layout (filled at creation) */
+  /* row_P and row_solidus follow the solver's own layout (filled at creation) */
   PetscCheck(info->xs == s->owned.xs && info->ys == s->owned.ys && info->xm == s->owned.xm && info->ym == s->owned.ym, PETSC_COMM_SELF, PETSC_ERR_PLIB, "equilibrium melt: grid layout differs from the solver's");
-  for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
-    for (PetscInt i = info->xs; i < info->xs + info->xm; i++, n++) s->work_T[n] = x[j][i].T;
-  PetscCall(CFMeltingModelMeltFractionArray(s->melting, n, s->work_P, s->work_T, s->work_F, s->work_dF));
+  /* Only cells near or above the solidus go to the model, gathered to the front of the work
+     arrays: most of the grid is colder, and there F = dF/dT = 0 (melting.h).  Otherwise the
+     model's cost lands on whichever ranks hold the cold mantle as much as on the melting
+     region's (measured in DEVELOPERS.md).  A NaN goes to the model, which refuses it. */
+  for (PetscInt j = info->ys; j < info->ys + info->ym; j++) {
+    const PetscReal P = s->row_P[j - info->ys], cold = s->row_solidus[j - info->ys] - CF_SOLIDUS_MARGIN;
+    for (PetscInt i = info->xs; i < info->xs + info->xm; i++)
+      if (!(x[j][i].T < cold)) {
+        s->work_P[m]   = P;
+        s->work_T[m++] = x[j][i].T;
+      }
+  }
+  PetscCall(CFMeltingModelMeltFractionArray(s->melting, m, s->work_P, s->work_T, s->work_F, s->work_dF));
+  /* spread back to one entry per owned cell, from the last: entry k never moves down */
+  for (PetscInt j = info->ys + info->ym - 1, c = n - 1, k = m - 1; j >= info->ys; j--) {
+    const PetscReal cold = s->row_solidus[j - info->ys] - CF_SOLIDUS_MARGIN;
+    for (PetscInt i = info->xs + info->xm - 1; i >= info->xs; i--, c--) {
+      const PetscBool model = (PetscBool)!(x[j][i].T < cold);
+      s->work_F[c]          = model ? s->work_F[k] : 0.0;
+      s->work_dF[c]         = model ? s->work_dF[k--] : 0.0;
+    }
+  }
   PetscFunctionReturn(0);
 }
 
@@ -159,8 +179,11 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
   s->nowned = info.xm * info.ym;
   PetscCall(PetscMalloc4(s->nowned, &s->work_P, s->nowned, &s->work_T, s->nowned, &s->work_F, s->nowned, &s->work_dF));
   s->owned = info;
-  for (PetscInt j = info.ys, n = 0; j < info.ys + info.ym; j++)
-    for (PetscInt i = info.xs; i < info.xs + info.xm; i++, n++) s->work_P[n] = CFPressure(&s->rc, (j + 0.5) * cfg->dz);
+  PetscCall(PetscMalloc2(info.ym, &s->row_P, info.ym, &s->row_solidus));
+  for (PetscInt j = info.ys; j < info.ys + info.ym; j++) {
+    s->row_P[j - info.ys] = CFPressure(&s->rc, (j + 0.5) * cfg->dz);
+    PetscCall(CFMeltingModelSolidus(s->melting, s->row_P[j - info.ys], &s->row_solidus[j - info.ys]));
+  }
   PetscCall(PetscCalloc2(info.gxm * info.gym, &s->kcell, info.gxm * info.gym, &s->dkcell));
   {
     ISLocalToGlobalMapping map;
@@ -242,6 +265,7 @@ PetscErrorCode CFSteadyDestroy(CFSteady *ps)
   PetscCall(CFMeltingModelDestroy(&s->melting));
   PetscCall(PetscFree(s->rc.corners.psi));
   PetscCall(PetscFree4(s->work_P, s->work_T, s->work_F, s->work_dF));
+  PetscCall(PetscFree2(s->row_P, s->row_solidus));
   PetscCall(PetscFree2(s->kcell, s->dkcell));
   PetscCall(PetscFree(*ps));
   PetscFunctionReturn(0);

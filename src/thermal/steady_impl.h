@@ -129,6 +129,7 @@ struct _p_CFSteady {
   PetscInt       nowned;
   DMDALocalInfo  owned; /* the layout work_* follow */
   PetscReal     *work_P, *work_T, *work_F, *work_dF;
+  PetscReal     *row_P, *row_solidus; /* pressure and solidus (K) of each owned row of cells */
   PetscReal     *kcell, *dkcell; /* conductivity and its temperature derivative over the ghosted patch */
   const PetscInt *gpoint;        /* global number of every cell of the ghosted patch (the DMDA's block map) */
   unsigned short *pattern;       /* slots of each row of A (or P) at its first assembly (CFSteadySetRow) */
