@@ -69,6 +69,7 @@ PetscErrorCode CFSteadyInterpolateFrom(CFSteady fine, CFSteady coarse)
       x[j][i].F = 0.0;
     }
   PetscCall(DMDAVecRestoreArray(fine->da, fine->X, &x));
+  fine->plate_guess = PETSC_FALSE;
   PetscCall(VecRestoreArrayRead(all, &Tc));
   PetscCall(VecScatterDestroy(&sc));
   PetscCall(VecDestroy(&all));
@@ -80,13 +81,19 @@ PetscErrorCode CFSteadyInterpolateFrom(CFSteady fine, CFSteady coarse)
 
 PetscErrorCode CFSteadySequenceInitialGuess(CFSteady s, PetscInt *levels_used, PetscInt *coarse_iterations)
 {
-  PetscReal max_spacing_km = 8.0;
-  PetscInt  levels;
+  const PetscReal kappa = s->cfg.conductivity / (s->cfg.mantle_density * s->cfg.heat_capacity);
+  PetscReal       max_spacing_km = 8.0;
+  PetscBool       set;
+  PetscInt        levels;
 
   PetscFunctionBeginUser;
   PetscOptionsBegin(s->comm, "steady_", "Steady coupled solver", "crustforge");
-  PetscCall(PetscOptionsReal("-coarsest_spacing", "coarsest grid spacing of the grid sequence that builds the initial guess (km); 0 turns sequencing off", NULL, max_spacing_km, &max_spacing_km, NULL));
+  PetscCall(PetscOptionsReal("-coarsest_spacing", "coarsest grid spacing of the grid sequence that builds the initial guess (km); 0 turns sequencing off; default 8 km, finer for fast spreading (cell Peclet number at most 16)", NULL, max_spacing_km, &max_spacing_km, &set));
   PetscOptionsEnd();
+  /* A coarsest cell of Peclet number U0 h / kappa above 16 makes Newton from the cooling-plate
+     guess crawl (150 mm/yr, 8 km: Pe 19, 42-134 Newton steps on the coarse grids against 8-21
+     from 4 km; 120 mm/yr, Pe 15: the same either way; measured in DEVELOPERS.md). */
+  while (!set && max_spacing_km > 1.0 && s->cfg.half_rate * CFKmToM(max_spacing_km) / kappa > 16.0) max_spacing_km /= 2.0;
   levels       = CoarseLevels(&s->cfg, CFKmToM(max_spacing_km));
   *levels_used = levels;
   *coarse_iterations = 0;
@@ -129,6 +136,7 @@ PetscErrorCode CFSteadyCopySolution(CFSteady s, Vec X)
   PetscCall(VecGetLocalSize(s->X, &m));
   PetscCheck(n == m, PETSC_COMM_SELF, PETSC_ERR_ARG_SIZ, "continuation: the solution to start from has %" PetscInt_FMT " local values, this grid %" PetscInt_FMT, n, m);
   PetscCall(VecCopy(X, s->X));
+  s->plate_guess = PETSC_FALSE;
   /* the depletion follows from the temperature for this case's melting parameters */
   PetscCall(VecStrideSet(s->X, 1, 0.0));
   PetscCall(CFDepletionSweep(s, s->X));

@@ -118,6 +118,7 @@ struct _p_CFSteady {
   DM             da, da1; /* dof 2 (T, F) and dof 1 with the same layout */
   SNES           snes;
   Vec            X;
+  PetscBool      plate_guess; /* X is CFSteadySetInitialGuess's, unchanged (anything that writes X clears it) */
   Mat            A, P; /* Jacobian; P: its first-order approximation, for picard only */
   CFSchur        schur;
   char           nonfinite[256]; /* the first NaN or Inf a residual met, "" if none */
