@@ -32,7 +32,7 @@ static PetscReal TopFaceHeatFlow(const CFConfig *cfg, const PetscScalar *T, cons
 
 /* Solve on comm, to a tolerance well below the agreement asked for; results on every rank.
    The coloured Jacobian is factored directly (-steady_jacobian coloring): the answer depends
-   only on the residual, and the default GMRES path needs about 20 parallel triangular solves
+   only on the residual, and the default Krylov path needs about 20 parallel triangular solves
    per Newton step, which on 4 ranks sharing 2 busy cores took 30 s instead of 1 s (measured). */
 static void SolveOn(MPI_Comm comm, const CFConfig *cfg, PetscReal res[NRESULTS], CFSolveReport *rep)
 {

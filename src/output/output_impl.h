@@ -44,6 +44,10 @@ PETSC_INTERN PetscBool CFRunAttributeReserved_Private(const char name[]);
    a one-line message (xdmf.c). */
 PETSC_INTERN int CFXdmfWrite_Private(const struct _n_CFRunFile *file, char msg[], size_t len);
 
+/* The field v (this rank's part of a global vector of the 2-D DMDA da, one dof) as the dataset
+   name[nz][nx] of file_id, natural order; collective (dataset.c). */
+PETSC_INTERN PetscErrorCode CFRunFileWriteBlock_Private(hid_t file_id, const char name[], DM da, const PetscReal v[]);
+
 /* Disk room (room.c).  CheckRoom: collective; refuses, with one line, a file of nfields fields
    that would pass the file-size limit or not fit on the disk, and reserves its room once the
    temporary file exists.  ReleaseRoom: rank 0, the closed file at path; 0 or -1 with errno.

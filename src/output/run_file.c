@@ -222,23 +222,24 @@ static PetscErrorCode CheckFieldInfo(CFRunFile f, const CFFieldInfo *info)
 }
 
 /* The stored copy of v in the output unit, and its attributes. */
-static PetscErrorCode WriteFieldData(CFRunFile f, const CFFieldInfo *info, Vec v)
+static PetscErrorCode WriteFieldData(CFRunFile f, const CFFieldInfo *info, DM da, Vec v)
 {
-  Vec            w;
-  char           dataset[CF_NAME_LEN + 1];
-  PetscErrorCode ierr;
+  const PetscScalar *a;
+  PetscReal         *w;
+  PetscInt           n;
+  char               dataset[CF_NAME_LEN + 1];
+  PetscErrorCode     ierr;
 
   PetscFunctionBeginUser;
-  /* VecView of a DMDA Vec writes natural ordering [nz][nx]. */
-  PetscCall(VecDuplicate(v, &w));
-  PetscCall(VecCopy(v, w));
-  PetscCall(VecScale(w, info->scale));
-  PetscCall(VecShift(w, info->offset));
-  PetscCall(PetscObjectSetName((PetscObject)w, info->name));
-  ierr = VecView(w, f->viewer); /* errors are returned here (GuardBegin): free w either way */
-  PetscCall(VecDestroy(&w));
-  PetscCall(ierr);
+  PetscCall(VecGetLocalSize(v, &n));
+  PetscCall(PetscMalloc1(n, &w));
+  PetscCall(VecGetArrayRead(v, &a));
+  for (PetscInt k = 0; k < n; k++) w[k] = PetscRealPart(a[k]) * info->scale + info->offset;
+  PetscCall(VecRestoreArrayRead(v, &a));
   PetscCall(PetscSNPrintf(dataset, sizeof(dataset), "/%s", info->name));
+  ierr = CFRunFileWriteBlock_Private(f->file_id, dataset, da, w); /* errors are returned here (GuardBegin): free w either way */
+  PetscCall(PetscFree(w));
+  PetscCall(ierr);
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "units", PETSC_STRING, info->units));
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "long_name", PETSC_STRING, info->long_name));
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "si_units", PETSC_STRING, info->si_units));
@@ -269,7 +270,7 @@ PetscErrorCode CFRunFileWriteField(CFRunFile f, const CFFieldInfo *info, Vec v)
 
   PetscCall(PetscSNPrintf(what, sizeof(what), "field %s", info->name));
   PetscCall(GuardBegin(&quiet));
-  ierr = WriteFieldData(f, info, v);
+  ierr = WriteFieldData(f, info, dm, v);
   PetscCall(GuardEnd(f, &quiet, ierr, what));
 
   r = &f->fields[f->nfields++];
