@@ -15,9 +15,9 @@ struct _p_CFSchur {
   PC         amg;
   Vec        b, t;         /* right side and solution of the temperature step */
   PetscInt   xm, ym, n;    /* owned block */
-  PetscBool  reuse;        /* keep the multigrid hierarchy while GMRES stays fast */
+  PetscBool  reuse;        /* keep the multigrid hierarchy while the Krylov solver stays fast */
   PetscBool  built;
-  PetscInt   its_built;    /* GMRES iterations of the first solve with the hierarchy, -1 unknown */
+  PetscInt   its_built;    /* Krylov iterations of the first solve with the hierarchy, -1 unknown */
   PetscReal *fw, *tf, *ft; /* per owned cell: depletion row on F (5 slots), energy row on F (5 slots), depletion row on T */
   unsigned short *pattern; /* slots of each row of S at its first assembly (CFSteadySetRow) */
 };
@@ -67,7 +67,7 @@ PetscErrorCode CFSchurCreate(CFSteady s, CFSchur *out)
   PetscCall(PCSetFromOptions(c->amg));
   c->reuse = PETSC_TRUE;
   PetscOptionsBegin(s->comm, "steady_", "Steady coupled solver", "crustforge");
-  PetscCall(PetscOptionsBool("-amg_reuse", "keep the BoomerAMG hierarchy of the temperature step across Newton steps until GMRES needs twice the iterations it did with it fresh", NULL, c->reuse, &c->reuse, NULL));
+  PetscCall(PetscOptionsBool("-amg_reuse", "keep the BoomerAMG hierarchy of the temperature step across Newton steps until the Krylov solver needs twice the iterations it did with it fresh", NULL, c->reuse, &c->reuse, NULL));
   PetscOptionsEnd();
   *out = c;
   PetscFunctionReturn(0);
@@ -90,7 +90,8 @@ PetscErrorCode CFSchurDestroy(CFSchur *pc)
 
 /* Building the hierarchy costs as much as several V-cycles, and the operator changes little
    between Newton steps (the melting region moves by a cell or so): rebuild only for a new solve,
-   or once GMRES needs twice the iterations it did with a fresh one (measured in DEVELOPERS.md). */
+   or once the Krylov solver needs twice the iterations it did with a fresh one (measured in
+   DEVELOPERS.md). */
 static PetscErrorCode NeedsRebuild(CFSteady s, PetscBool *rebuild)
 {
   CFSchur  c   = s->schur;

@@ -191,7 +191,7 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
     PetscCall(ISLocalToGlobalMappingGetBlockIndices(map, &s->gpoint));
   }
 
-  /* Newton-Krylov: GMRES on the analytic Jacobian, preconditioned by an assembled first-order
+  /* Newton-Krylov: BiCGStab on the analytic Jacobian, preconditioned by an assembled first-order
      approximation (jacobian.c); -steady_jacobian split uses coloured finite differences as the
      operator, coloring factors those directly.  Measured in DEVELOPERS.md; -snes_*, -ksp_*,
      -pc_* override. */
@@ -205,7 +205,7 @@ PetscErrorCode CFSteadyCreate(MPI_Comm comm, const CFConfig *cfg, CFSteady *out)
     const char *const kinds[] = {"analytic", "split", "coloring", "picard", "CFSteadyJacobian", "", NULL};
     PetscEnum         kind    = 0;
     PetscOptionsBegin(comm, "steady_", "Steady coupled solver", "crustforge");
-    PetscCall(PetscOptionsEnum("-jacobian", "analytic: the exact Jacobian as operator, GMRES preconditioned by eliminating the depletion and a BoomerAMG cycle on the temperature (schur.c); split: the same with coloured finite differences as operator; coloring: the coloured Jacobian factored directly; picard: outer iterations (temperature with the melting rate frozen, then depletion with the temperature frozen), for comparison", NULL, kinds, kind, &kind, NULL));
+    PetscCall(PetscOptionsEnum("-jacobian", "analytic: the exact Jacobian as operator, BiCGStab preconditioned by eliminating the depletion and a BoomerAMG cycle on the temperature (schur.c); split: the same with coloured finite differences as operator; coloring: the coloured Jacobian factored directly; picard: outer iterations (temperature with the melting rate frozen, then depletion with the temperature frozen), for comparison", NULL, kinds, kind, &kind, NULL));
     PetscOptionsEnd();
     s->jacobian = (CFSteadyJacobian)kind;
   }
