@@ -224,21 +224,23 @@ static PetscErrorCode CheckFieldInfo(CFRunFile f, const CFFieldInfo *info)
 /* The stored copy of v in the output unit, and its attributes. */
 static PetscErrorCode WriteFieldData(CFRunFile f, const CFFieldInfo *info, DM da, Vec v)
 {
+  Vec                w;
   const PetscScalar *a;
-  PetscReal         *w;
-  PetscInt           n;
   char               dataset[CF_NAME_LEN + 1];
   PetscErrorCode     ierr;
 
   PetscFunctionBeginUser;
-  PetscCall(VecGetLocalSize(v, &n));
-  PetscCall(PetscMalloc1(n, &w));
-  PetscCall(VecGetArrayRead(v, &a));
-  for (PetscInt k = 0; k < n; k++) w[k] = PetscRealPart(a[k]) * info->scale + info->offset;
-  PetscCall(VecRestoreArrayRead(v, &a));
+  /* the same operations as the post-processing's round trip (rundata.c), so both hold the
+     same bits */
+  PetscCall(VecDuplicate(v, &w));
+  PetscCall(VecCopy(v, w));
+  PetscCall(VecScale(w, info->scale));
+  PetscCall(VecShift(w, info->offset));
   PetscCall(PetscSNPrintf(dataset, sizeof(dataset), "/%s", info->name));
-  ierr = CFRunFileWriteBlock_Private(f->file_id, dataset, da, w); /* errors are returned here (GuardBegin): free w either way */
-  PetscCall(PetscFree(w));
+  PetscCall(VecGetArrayRead(w, &a));
+  ierr = CFRunFileWriteBlock_Private(f->file_id, dataset, da, a); /* errors are returned here (GuardBegin): free w either way */
+  PetscCall(VecRestoreArrayRead(w, &a));
+  PetscCall(VecDestroy(&w));
   PetscCall(ierr);
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "units", PETSC_STRING, info->units));
   PetscCall(PetscViewerHDF5WriteAttribute(f->viewer, dataset, "long_name", PETSC_STRING, info->long_name));
