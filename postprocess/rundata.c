@@ -19,10 +19,21 @@ PetscErrorCode CFRunDataCreate(MPI_Comm comm, const CFConfig *cfg, CFRunData *d)
   PetscFunctionReturn(0);
 }
 
+static PetscErrorCode GatherDestroy(CFRunData *d)
+{
+  PetscFunctionBeginUser;
+  PetscCall(VecScatterDestroy(&d->gather));
+  PetscCall(VecDestroy(&d->gather_zero));
+  PetscCall(VecDestroy(&d->gather_natural));
+  d->gather_dm = NULL;
+  PetscFunctionReturn(0);
+}
+
 PetscErrorCode CFRunDataDestroy(CFRunData *d)
 {
   PetscFunctionBeginUser;
   for (PetscInt f = 0; f < CF_NFIELDS; f++) PetscCall(PetscFree(d->field[f]));
+  PetscCall(GatherDestroy(d));
   PetscFunctionReturn(0);
 }
 
@@ -36,7 +47,15 @@ static PetscErrorCode Gather(MPI_Comm comm, CFRunData *d, CFFieldId id, DM da, V
 
   PetscFunctionBeginUser;
   PetscCallMPI(MPI_Comm_rank(comm, &rank));
-  PetscCall(DMDACreateNaturalVector(da, &nat));
+  if (d->gather_dm != da) { /* one scatter for all the fields: building it cost more than using it */
+    PetscCall(GatherDestroy(d));
+    PetscCall(DMDACreateNaturalVector(da, &d->gather_natural));
+    PetscCall(VecScatterCreateToZero(d->gather_natural, &d->gather, &d->gather_zero));
+    d->gather_dm = da;
+  }
+  nat  = d->gather_natural;
+  zero = d->gather_zero;
+  sc   = d->gather;
   PetscCall(DMDAGlobalToNaturalBegin(da, v, INSERT_VALUES, nat));
   PetscCall(DMDAGlobalToNaturalEnd(da, v, INSERT_VALUES, nat));
   if (round_trip) {
@@ -46,7 +65,6 @@ static PetscErrorCode Gather(MPI_Comm comm, CFRunData *d, CFFieldId id, DM da, V
     PetscCall(VecShift(nat, -info->offset));
     PetscCall(VecScale(nat, 1.0 / info->scale));
   }
-  PetscCall(VecScatterCreateToZero(nat, &sc, &zero));
   PetscCall(VecScatterBegin(sc, nat, zero, INSERT_VALUES, SCATTER_FORWARD));
   PetscCall(VecScatterEnd(sc, nat, zero, INSERT_VALUES, SCATTER_FORWARD));
   if (!rank) {
@@ -55,9 +73,6 @@ static PetscErrorCode Gather(MPI_Comm comm, CFRunData *d, CFFieldId id, DM da, V
     PetscCall(PetscArraycpy(d->field[id], a, d->nx * d->nz));
     PetscCall(VecRestoreArrayRead(zero, &a));
   }
-  PetscCall(VecScatterDestroy(&sc));
-  PetscCall(VecDestroy(&zero));
-  PetscCall(VecDestroy(&nat));
   PetscFunctionReturn(0);
 }
 

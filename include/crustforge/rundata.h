@@ -34,6 +34,10 @@ typedef struct {
   PetscReal *field[CF_NFIELDS];      /* SI, natural order; NULL except on rank 0 */
   PetscInt   nonlinear_iterations, linear_iterations;
   PetscReal  residual_norm, solve_seconds;
+  /* private: the gather of gather_dm's vectors to rank 0, made for the first field and reused */
+  DM         gather_dm;
+  Vec        gather_natural, gather_zero;
+  VecScatter gather;
 } CFRunData;
 
 /* Allocate the arrays on rank 0 for cfg's grid. */
