@@ -25,7 +25,7 @@ flags="-g -O1 -fsanitize=fuzzer,address,undefined -fno-sanitize-recover=undefine
 libs="$(pkg-config --libs PETSc hdf5-openmpi yaml-0.1) -lm"
 config="src/config/keys.c src/config/config.c src/config/scan.c src/config/resources.c src/melting/registry.c
   src/melting/model.c src/melting/linear.c src/melting/katz2003.c src/melting/brent.c"
-output="src/output/run_file.c src/output/header.c src/output/xdmf.c src/output/h5attr.c src/output/read.c src/output/integrity.c src/output/room.c"
+output="src/output/run_file.c src/output/dataset.c src/output/header.c src/output/xdmf.c src/output/h5attr.c src/output/read.c src/output/integrity.c src/output/room.c"
 # shellcheck disable=SC2086
 "$CC" $flags -Wno-unknown-pragmas tests/fuzz/fuzz_config.c $config $libs -o "$dir/fuzz_config"
 # shellcheck disable=SC2086
