@@ -269,7 +269,7 @@ PetscErrorCode CFSteadyNewtonSetUp(CFSteady s)
   PetscFunctionBeginUser;
   if (s->jacobian == CF_JACOBIAN_COLORING) PetscFunctionReturn(0); /* the SNES builds its own from the DM */
   PetscCall(PetscMalloc1(2 * s->nowned, &s->pattern));
-  if (s->jacobian == CF_JACOBIAN_PICARD) { /* the analytic pattern, its extra entries zero */
+  if (s->jacobian == CF_JACOBIAN_PICARD) { /* preallocated as the analytic Jacobian, whose pattern holds its own */
     PetscCall(CreateAnalyticJacobian(s, &s->P));
     PetscCall(SNESSetJacobian(s->snes, s->P, s->P, CFSteadyFormJacobian, s));
     PetscFunctionReturn(0);

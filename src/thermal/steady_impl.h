@@ -30,6 +30,7 @@ static inline PetscReal CFHarmonicMean(PetscReal a, PetscReal b) { return 2.0 * 
    added to, in order, as DMDA stencils (col, v, n): a first assembly then appends instead of
    shifting every entry of the row. */
 #define CF_JAC_SLOTS 14
+_Static_assert(CF_JAC_SLOTS <= 16, "a row's slots are recorded in 16 bits (CFSteadySetRow)");
 typedef struct {
   PetscInt    i0, j0;
   PetscScalar s[CF_JAC_SLOTS];
