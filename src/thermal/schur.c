@@ -142,16 +142,16 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
       for (PetscInt k = 0; k < 5; k++) c->tf[5 * n + k] = 0.0;
       for (PetscInt e = 0; e < r.n; e++) {
         const PetscInt k = Slot(i, j, r.col[e].i, r.col[e].j);
-        if (r.col[e].c == 0) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, r.v[e]);
-        else {
+        if (r.col[e].c == 0) {
+          if (rebuild) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, r.v[e]);
+        } else {
           /* dF_m = -(ft_m / fw_m) dT_m where m melts: folded into the temperature column */
           const PetscInt m = Neighbour(c, n, i - info->xs, j - info->ys, k);
           c->tf[5 * n + k] = r.v[e];
-          if (m >= 0) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, -r.v[e] * c->ft[m] / c->fw[5 * m]);
+          if (rebuild && m >= 0) CFJacRowAdd(&t, r.col[e].i, r.col[e].j, 0, -r.v[e] * c->ft[m] / c->fw[5 * m]);
         }
       }
-      if (!rebuild) continue;
-      PetscCall(CFSteadySetRow(s, c->S, formed, 1, 0, c->pattern, &t));
+      if (rebuild) PetscCall(CFSteadySetRow(s, c->S, formed, 1, 0, c->pattern, &t));
     }
   if (!rebuild) PetscFunctionReturn(0);
   PetscCall(MatAssemblyBegin(c->S, MAT_FINAL_ASSEMBLY));

@@ -339,6 +339,7 @@ static PetscErrorCode SolveOnce(CFSteady s, CFSolveReport *r)
   PetscErrorCode ierr;
 
   PetscFunctionBeginUser;
+  s->plate_guess = PETSC_FALSE; /* Newton moves X */
   PetscCall(VecDuplicate(s->X, &Fv));
   ierr = SolveOnceWith(s, Fv, r);
   PetscCall(VecDestroy(&Fv));
@@ -367,7 +368,6 @@ PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *r)
   PetscFunctionBeginUser;
   PetscCall(PetscMemzero(r, sizeof(*r)));
   PetscCall(PetscOptionsGetBool(NULL, NULL, "-steady_fallback", &fallback, NULL));
-  s->plate_guess = PETSC_FALSE; /* Newton moves X */
   PetscCall(CFSteadyNewtonSetUp(s));
   PetscCall(SolveOnce(s, &once));
   r->initial_residual = once.initial_residual;
@@ -378,7 +378,6 @@ PetscErrorCode CFSteadySolve(CFSteady s, CFSolveReport *r)
     PetscCall(SolveOnce(s, &once));
     Accumulate(r, &once);
   }
-  s->plate_guess = PETSC_FALSE;
   if (r->reason <= 0 && fallback && s->cfg.nusselt > 1.0) {
     const PetscReal nu = s->cfg.nusselt;
     PetscCall(PetscPrintf(s->comm, "steady solve: Newton stopped (%s); continuation in the hydrothermal Nusselt number\n", SNESConvergedReasons[r->reason]));
