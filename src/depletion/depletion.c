@@ -29,8 +29,11 @@ PetscErrorCode CFDepletionSweep(CFSteady s, Vec X)
   CFCellState **x;
   PetscMPIInt   changed;
   PetscInt      sweeps = 0;
+  PetscLogEvent event;
 
   PetscFunctionBeginUser;
+  PetscCall(PetscLogEventRegister("CFDepletionSweep", 0, &event)); /* an existing name returns its event */
+  PetscCall(PetscLogEventBegin(event, 0, 0, 0, 0));
   PetscCall(DMDAGetLocalInfo(da, &info));
   PetscCall(DMGetLocalVector(da, &Xl));
   PetscCall(DMGlobalToLocal(da, X, INSERT_VALUES, Xl));
@@ -58,5 +61,6 @@ PetscErrorCode CFDepletionSweep(CFSteady s, Vec X)
     PetscCheck(sweeps <= info.mx + info.my + 2, s->comm, PETSC_ERR_PLIB, "depletion sweep did not settle after %" PetscInt_FMT " passes: the flow has a cycle", sweeps);
   } while (changed);
   PetscCall(DMRestoreLocalVector(da, &Xl));
+  PetscCall(PetscLogEventEnd(event, 0, 0, 0, 0));
   PetscFunctionReturn(0);
 }

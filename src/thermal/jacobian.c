@@ -154,10 +154,13 @@ PetscErrorCode CFSteadySetRow(CFSteady s, Mat M, PetscBool formed, PetscInt dof,
 /* The rows of every owned cell into M: exact, or the five-point approximation. */
 static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x, PetscBool exact, Mat M)
 {
-  PetscInt  n = 0;
-  PetscBool formed;
+  PetscInt      n = 0;
+  PetscBool     formed;
+  PetscLogEvent event;
 
   PetscFunctionBeginUser;
+  PetscCall(PetscLogEventRegister("CFJacobianRows", 0, &event)); /* an existing name returns its event */
+  PetscCall(PetscLogEventBegin(event, 0, 0, 0, 0));
   /* every row inserts its whole pattern (zeros included), so the matrix needs no zeroing */
   PetscCall(MatAssembled(M, &formed));
   for (PetscInt j = info->ys; j < info->ys + info->ym; j++)
@@ -170,6 +173,7 @@ static PetscErrorCode Assemble(CFSteady s, const DMDALocalInfo *info, const CFCe
       CFSteadyDepletionRow(&s->rc, x, i, j, s->work_F[n], s->work_dF[n], (PetscBool)(s->jacobian == CF_JACOBIAN_PICARD && !exact), &r);
       PetscCall(CFSteadySetRow(s, M, formed, 2, 1, s->pattern, &r));
     }
+  PetscCall(PetscLogEventEnd(event, 0, 0, 0, 0));
   PetscCall(MatAssemblyBegin(M, MAT_FINAL_ASSEMBLY));
   PetscCall(MatAssemblyEnd(M, MAT_FINAL_ASSEMBLY));
   PetscFunctionReturn(0);

@@ -108,11 +108,14 @@ static PetscErrorCode NeedsRebuild(CFSteady s, PetscBool *rebuild)
 
 PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCellState *const *x)
 {
-  CFSchur   c = s->schur;
-  PetscInt  n = 0;
-  PetscBool rebuild = PETSC_TRUE, formed;
+  CFSchur       c = s->schur;
+  PetscInt      n = 0;
+  PetscBool     rebuild = PETSC_TRUE, formed;
+  PetscLogEvent event;
 
   PetscFunctionBeginUser;
+  PetscCall(PetscLogEventRegister("CFSchurRows", 0, &event)); /* an existing name returns its event */
+  PetscCall(PetscLogEventBegin(event, 0, 0, 0, 0));
   PetscCall(NeedsRebuild(s, &rebuild));
   PetscCall(MatAssembled(c->S, &formed));
   /* the depletion rows first: the temperature rows need their neighbours' */
@@ -153,6 +156,7 @@ PetscErrorCode CFSchurAssemble(CFSteady s, const DMDALocalInfo *info, const CFCe
       }
       if (rebuild) PetscCall(CFSteadySetRow(s, c->S, formed, 1, 0, c->pattern, &t));
     }
+  PetscCall(PetscLogEventEnd(event, 0, 0, 0, 0));
   if (!rebuild) PetscFunctionReturn(0);
   PetscCall(MatAssemblyBegin(c->S, MAT_FINAL_ASSEMBLY));
   PetscCall(MatAssemblyEnd(c->S, MAT_FINAL_ASSEMBLY));
