@@ -88,14 +88,14 @@ static PetscReal DryMeltFraction(const PetscReal p[], const DryCurves *c, PetscR
     return 0.0;
   }
   if (T_C < c->Tc) {
-    const PetscReal w = c->Tlz - c->Ts, x = (T_C - c->Ts) / w;
-    *dFdT = p[BETA1] * pow(x, p[BETA1] - 1.0) / w;
-    return pow(x, p[BETA1]);
+    const PetscReal w = c->Tlz - c->Ts, x = (T_C - c->Ts) / w, F = pow(x, p[BETA1]);
+    *dFdT = p[BETA1] * F / (x * w); /* x > 0 here: x^(beta-1) = x^beta / x, one power instead of two */
+    return F;
   }
   if (T_C < c->Tl) {
-    const PetscReal w = c->Tl - c->Tc, x = (T_C - c->Tc) / w;
-    *dFdT = (1.0 - c->Fc) * p[BETA2] * pow(x, p[BETA2] - 1.0) / w;
-    return PetscMin(1.0, c->Fc + (1.0 - c->Fc) * pow(x, p[BETA2]));
+    const PetscReal w = c->Tl - c->Tc, x = (T_C - c->Tc) / w, Fx = pow(x, p[BETA2]);
+    *dFdT = (1.0 - c->Fc) * p[BETA2] * (x > 0.0 ? Fx / x : pow(x, p[BETA2] - 1.0)) / w;
+    return PetscMin(1.0, c->Fc + (1.0 - c->Fc) * Fx);
   }
   *dFdT = 0.0;
   return 1.0;
@@ -104,7 +104,7 @@ static PetscReal DryMeltFraction(const PetscReal p[], const DryCurves *c, PetscR
 static void WaterAt(const PetscReal p[], PetscReal P_GPa, PetscReal water_ppm, Water *w)
 {
   w->bulk  = CFPpmToWtPercent(water_ppm);
-  w->sat   = p[CHI1] * pow(P_GPa, p[LAMBDA]) + p[CHI2] * P_GPa;
+  w->sat   = w->bulk > 0.0 ? p[CHI1] * pow(P_GPa, p[LAMBDA]) + p[CHI2] * P_GPa : 0.0; /* dry: the melt holds no water whatever its capacity */
   w->D     = p[WATER_D];
   w->K     = p[WATER_K];
   w->gamma = p[WATER_GAMMA];
