@@ -1,7 +1,7 @@
 /* The post-processor's tables: summary.csv (one row), profiles.csv (one row per column) and
    pt_paths.csv (one row per path point).  Comma-separated, one header line, numbers in the units
    their column names state, written with 15 significant digits (enough to re-read a figure to
-   round-off); NaN is written "nan".  Rank 0 writes DIR/NAME.tmp and renames it to DIR/NAME
+   round-off); NaN is written "nan".  One rank writes DIR/NAME.tmp and renames it to DIR/NAME
    when complete, so an interrupted write never leaves a partial table under the real name. */
 #include <errno.h>
 #include <math.h>
@@ -21,8 +21,8 @@ static void Real(FILE *fp, PetscReal v, const char *end)
   fputs(end, fp);
 }
 
-/* Rank 0 only: write the file, "" in msg on success, else a one-line reason. */
-static void WriteOnRoot(const char dir[], const char name[], CsvBody body, const void *ctx, char msg[], size_t len)
+/* One rank: write DIR/NAME.tmp; "" in msg on success, else a one-line reason. */
+static void WriteTemp(const char dir[], const char name[], CsvBody body, const void *ctx, char msg[], size_t len)
 {
   char  path[PETSC_MAX_PATH_LEN], tmp[PETSC_MAX_PATH_LEN + 8];
   FILE *fp;
@@ -38,22 +38,20 @@ static void WriteOnRoot(const char dir[], const char name[], CsvBody body, const
   body(fp, ctx);
   bad = ferror(fp);
   if (fclose(fp) || bad) snprintf(msg, len, "writing '%s' failed: %s", tmp, strerror(errno));
-  else if (rename(tmp, path)) snprintf(msg, len, "cannot rename '%s' to '%s': %s", tmp, path, strerror(errno));
-  if (msg[0]) (void)unlink(tmp);
 }
 
-static PetscErrorCode WriteCSV(MPI_Comm comm, const char dir[], const char name[], CsvBody body, const void *ctx)
+/* DIR/NAME.tmp renamed to DIR/NAME when keep, else removed; a failed rename into msg. */
+static void Publish(const char dir[], const char name[], PetscBool keep, char msg[], size_t len)
 {
-  PetscMPIInt rank;
-  char        msg[2 * PETSC_MAX_PATH_LEN + 128] = "";
+  char path[PETSC_MAX_PATH_LEN], tmp[PETSC_MAX_PATH_LEN + 8];
 
-  PetscFunctionBeginUser;
-  PetscCallMPI(MPI_Comm_rank(comm, &rank));
-  if (!rank) WriteOnRoot(dir, name, body, ctx, msg, sizeof(msg));
-  PetscCallMPI(MPI_Bcast(msg, sizeof(msg), MPI_CHAR, 0, comm));
-  PetscCheck(!msg[0], comm, PETSC_ERR_FILE_WRITE, "%s", msg);
-  PetscFunctionReturn(0);
+  snprintf(path, sizeof(path), "%s/%s", dir, name);
+  snprintf(tmp, sizeof(tmp), "%s.tmp", path);
+  if (keep && !rename(tmp, path)) return;
+  if (keep) snprintf(msg, len, "cannot rename '%s' to '%s': %s", tmp, path, strerror(errno));
+  (void)unlink(tmp);
 }
+
 
 /* ---- summary.csv: other tools (sweeps, figures) rely on these column names ---------------- */
 typedef struct {
@@ -124,14 +122,6 @@ static void SummaryBody(FILE *fp, const void *ptr)
   CFPostSummaryCSVRow(fp, s->run, s->set, s->sum, "\n");
 }
 
-PetscErrorCode CFPostWriteSummaryCSV(MPI_Comm comm, const char dir[], const CFRunData *run, const CFPostSettings *set, const CFSummary *sum)
-{
-  SummaryCtx ctx = {run, set, sum};
-
-  PetscFunctionBeginUser;
-  PetscCall(WriteCSV(comm, dir, "summary.csv", SummaryBody, &ctx));
-  PetscFunctionReturn(0);
-}
 
 /* ---- profiles.csv ------------------------------------------------------------------------- */
 static void ProfilesBody(FILE *fp, const void *ptr)
@@ -148,12 +138,6 @@ static void ProfilesBody(FILE *fp, const void *ptr)
   }
 }
 
-PetscErrorCode CFPostWriteProfilesCSV(MPI_Comm comm, const char dir[], const CFProfiles *prof)
-{
-  PetscFunctionBeginUser;
-  PetscCall(WriteCSV(comm, dir, "profiles.csv", ProfilesBody, prof));
-  PetscFunctionReturn(0);
-}
 
 /* ---- pt_paths.csv: paths numbered from 1 in the order of pt_paths.start_x ----------------- */
 static void PathsBody(FILE *fp, const void *ptr)
@@ -173,9 +157,37 @@ static void PathsBody(FILE *fp, const void *ptr)
     }
 }
 
-PetscErrorCode CFPostWritePathsCSV(MPI_Comm comm, const char dir[], const CFPTPaths *paths)
+/* Rank 0 writes summary.csv and profiles.csv while the last rank writes pt_paths.csv, the
+   longest of the three (every rank holds the paths).  Only when all three are complete do they
+   take their real names, so a failure leaves the directory's earlier tables as they were. */
+PetscErrorCode CFPostWriteTables(MPI_Comm comm, const char dir[], const CFRunData *run, const CFPostSettings *set, const CFSummary *sum, const CFProfiles *prof, const CFPTPaths *paths)
 {
+  const SummaryCtx ctx = {run, set, sum};
+  PetscMPIInt      rank, size;
+  PetscBool        ok;
+  char             msg[2][2 * PETSC_MAX_PATH_LEN + 128] = {"", ""};
+
   PetscFunctionBeginUser;
-  PetscCall(WriteCSV(comm, dir, "pt_paths.csv", PathsBody, paths));
+  PetscCallMPI(MPI_Comm_rank(comm, &rank));
+  PetscCallMPI(MPI_Comm_size(comm, &size));
+  if (!rank) {
+    WriteTemp(dir, "summary.csv", SummaryBody, &ctx, msg[0], sizeof(msg[0]));
+    if (!msg[0][0]) WriteTemp(dir, "profiles.csv", ProfilesBody, prof, msg[0], sizeof(msg[0]));
+  }
+  if (rank == size - 1) WriteTemp(dir, "pt_paths.csv", PathsBody, paths, msg[1], sizeof(msg[1]));
+  PetscCallMPI(MPI_Bcast(msg[0], sizeof(msg[0]), MPI_CHAR, 0, comm));
+  PetscCallMPI(MPI_Bcast(msg[1], sizeof(msg[1]), MPI_CHAR, size - 1, comm));
+  ok = (PetscBool)(!msg[0][0] && !msg[1][0]);
+  if (!rank) {
+    Publish(dir, "summary.csv", ok, msg[0], sizeof(msg[0]));
+    Publish(dir, "profiles.csv", ok, msg[0], sizeof(msg[0]));
+  }
+  if (rank == size - 1) Publish(dir, "pt_paths.csv", ok, msg[1], sizeof(msg[1]));
+  if (ok) { /* a rename's failure */
+    PetscCallMPI(MPI_Bcast(msg[0], sizeof(msg[0]), MPI_CHAR, 0, comm));
+    PetscCallMPI(MPI_Bcast(msg[1], sizeof(msg[1]), MPI_CHAR, size - 1, comm));
+  }
+  PetscCheck(!msg[0][0], comm, PETSC_ERR_FILE_WRITE, "%s", msg[0]);
+  PetscCheck(!msg[1][0], comm, PETSC_ERR_FILE_WRITE, "%s", msg[1]);
   PetscFunctionReturn(0);
 }

@@ -43,9 +43,7 @@ PETSC_INTERN PetscErrorCode CFPostShareError(MPI_Comm comm, PetscErrorCode ierr)
 /* Rank 0: the delivered-melt figures of sum (crust both ways, pooled melt, melt flux, regime mean F). */
 PETSC_INTERN PetscErrorCode CFPostExtraction(const CFRunData *run, const CFPostSettings *set, const PetscReal psi[], const PetscBool melting[], CFSummary *sum);
 
-/* The tables, written on rank 0 into dir under a temporary name and renamed. Collective. */
-PETSC_INTERN PetscErrorCode CFPostWriteSummaryCSV(MPI_Comm comm, const char dir[], const CFRunData *run, const CFPostSettings *set, const CFSummary *sum);
-PETSC_INTERN PetscErrorCode CFPostWriteProfilesCSV(MPI_Comm comm, const char dir[], const CFProfiles *prof);
-PETSC_INTERN PetscErrorCode CFPostWritePathsCSV(MPI_Comm comm, const char dir[], const CFPTPaths *paths);
+/* The tables, written into dir under temporary names and renamed together (csv.c). Collective. */
+PETSC_INTERN PetscErrorCode CFPostWriteTables(MPI_Comm comm, const char dir[], const CFRunData *run, const CFPostSettings *set, const CFSummary *sum, const CFProfiles *prof, const CFPTPaths *paths);
 
 #endif

@@ -72,9 +72,7 @@ static PetscErrorCode WriteAll(MPI_Comm comm, const CFRunData *run, const CFPost
   char text[4096];
 
   PetscFunctionBeginUser;
-  PetscCall(CFPostWriteSummaryCSV(comm, dir, run, set, sum));
-  PetscCall(CFPostWriteProfilesCSV(comm, dir, prof));
-  PetscCall(CFPostWritePathsCSV(comm, dir, paths));
+  PetscCall(CFPostWriteTables(comm, dir, run, set, sum, prof, paths));
   SummaryText(run, set, sum, dir, text, sizeof(text));
   PetscCall(PetscPrintf(comm, "%s", text));
   if (figures) PetscCall(Figures(comm, run, prof, paths, dir));
