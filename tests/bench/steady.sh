@@ -48,11 +48,17 @@ run() { # label ranks threads spacing
   its=$(grep "^steady solve:" "$log" | sed 's/steady solve: \([0-9]*\) Newton iterations, \([0-9]*\) linear.*/\1 \2/')
   cells=$(awk -v h="$h" 'BEGIN{printf "%d", (400/h)*(200/h)}')
   stages=$(awk -F: '/Summary of Stages/{f=1;next} /^ *[0-9]+: /&&f{split($3,a," "); gsub(/^ +| +$/,"",$2); gsub(/ /,"_",$2); printf "%s=%.2fs ", $2, a[1]} /Event Stage/{f=0}' "$log")
-  printf "%-10s h=%-5s cells=%-8s ranks=%s threads=%s wall=%.2fs (range %s, %.1f us/cell) newton/linear=%-6s peakRSS=%s kB (%.0f B/cell) %s\n" \
-    "$1" "$h" "$cells" "$np" "$nt" "$wall" "$range" "$(awk -v s="$wall" -v c="$cells" 'BEGIN{print s*1e6/c}')" "$(echo $its | tr ' ' /)" "$rss" "$(awk -v r="$rss" -v c="$cells" 'BEGIN{print r*1024/c}')" "$stages"
+  printf "%-10s h=%-5s cells=%-8s ranks=%s threads=%s wall=%.2fs (range %s, %.1f us/cell) newton/linear=%-6s peakRSS=%s kB (%.0f B/cell; %.0f B/cell above the floor) %s\n" \
+    "$1" "$h" "$cells" "$np" "$nt" "$wall" "$range" "$(awk -v s="$wall" -v c="$cells" 'BEGIN{print s*1e6/c}')" "$(echo $its | tr ' ' /)" "$rss" "$(awk -v r="$rss" -v c="$cells" 'BEGIN{print r*1024/c}')" "$(awk -v r="$rss" -v f="$floor" -v n="$np" -v c="$cells" 'BEGIN{print (r-f)*1024*n/c}')" "$stages"
 }
 
 echo "crustforge steady benchmark, $(nproc) cores, $(date -u +%Y-%m-%dT%H:%MZ), median of $REPEAT runs"
+# The floor: the peak resident size of an 8 km run (1 250 cells), nearly all of it the shared
+# libraries and MPI that every run loads whatever its grid; "above the floor" is per rank times
+# ranks over cells, what the grid itself costs
+once floor 1 1 8 1 >/dev/null
+floor=$(grep "Maximum resident" "$TMP/floor.1.time" | awk '{print $NF}')
+echo "floor      h=8     peakRSS=$floor kB"
 for h in $SPACINGS; do run "serial" 1 1 "$h"; done
 run "2 ranks" 2 1 1
 finest=$(echo $SPACINGS | awk '{print $NF}')
