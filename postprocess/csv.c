@@ -21,6 +21,13 @@ static void Real(FILE *fp, PetscReal v, const char *end)
   fputs(end, fp);
 }
 
+/* DIR/NAME and its temporary name DIR/NAME.tmp. */
+static void TablePaths(const char dir[], const char name[], char path[PETSC_MAX_PATH_LEN], char tmp[PETSC_MAX_PATH_LEN + 8])
+{
+  snprintf(path, PETSC_MAX_PATH_LEN, "%s/%s", dir, name);
+  snprintf(tmp, PETSC_MAX_PATH_LEN + 8, "%s.tmp", path);
+}
+
 /* One rank: write DIR/NAME.tmp; "" in msg on success, else a one-line reason. */
 static void WriteTemp(const char dir[], const char name[], CsvBody body, const void *ctx, char msg[], size_t len)
 {
@@ -29,8 +36,7 @@ static void WriteTemp(const char dir[], const char name[], CsvBody body, const v
   int   bad;
 
   msg[0] = 0;
-  snprintf(path, sizeof(path), "%s/%s", dir, name);
-  snprintf(tmp, sizeof(tmp), "%s.tmp", path);
+  TablePaths(dir, name, path, tmp);
   if (!(fp = fopen(tmp, "w"))) {
     snprintf(msg, len, "cannot write '%s': %s", tmp, strerror(errno));
     return;
@@ -45,13 +51,11 @@ static void Publish(const char dir[], const char name[], PetscBool keep, char ms
 {
   char path[PETSC_MAX_PATH_LEN], tmp[PETSC_MAX_PATH_LEN + 8];
 
-  snprintf(path, sizeof(path), "%s/%s", dir, name);
-  snprintf(tmp, sizeof(tmp), "%s.tmp", path);
+  TablePaths(dir, name, path, tmp);
   if (keep && !rename(tmp, path)) return;
   if (keep) snprintf(msg, len, "cannot rename '%s' to '%s': %s", tmp, path, strerror(errno));
   (void)unlink(tmp);
 }
-
 
 /* ---- summary.csv: other tools (sweeps, figures) rely on these column names ---------------- */
 typedef struct {
@@ -122,7 +126,6 @@ static void SummaryBody(FILE *fp, const void *ptr)
   CFPostSummaryCSVRow(fp, s->run, s->set, s->sum, "\n");
 }
 
-
 /* ---- profiles.csv ------------------------------------------------------------------------- */
 static void ProfilesBody(FILE *fp, const void *ptr)
 {
@@ -137,7 +140,6 @@ static void ProfilesBody(FILE *fp, const void *ptr)
     Real(fp, CFMToKm(p->lithosphere_thickness[i]), "\n");
   }
 }
-
 
 /* ---- pt_paths.csv: paths numbered from 1 in the order of pt_paths.start_x ----------------- */
 static void PathsBody(FILE *fp, const void *ptr)
@@ -155,6 +157,15 @@ static void PathsBody(FILE *fp, const void *ptr)
       Real(fp, CFKelvinToCelsius(p->T[q][k]), ",");
       Real(fp, p->F[q][k], "\n");
     }
+}
+
+/* Every rank learns the outcome of rank 0's tables (msg[0]) and of the last rank's (msg[1]). */
+static PetscErrorCode ShareOutcome(MPI_Comm comm, PetscMPIInt size, char msg[2][2 * PETSC_MAX_PATH_LEN + 128])
+{
+  PetscFunctionBeginUser;
+  PetscCallMPI(MPI_Bcast(msg[0], sizeof(msg[0]), MPI_CHAR, 0, comm));
+  PetscCallMPI(MPI_Bcast(msg[1], sizeof(msg[1]), MPI_CHAR, size - 1, comm));
+  PetscFunctionReturn(0);
 }
 
 /* Rank 0 writes summary.csv and profiles.csv while the last rank writes pt_paths.csv, the
@@ -175,18 +186,14 @@ PetscErrorCode CFPostWriteTables(MPI_Comm comm, const char dir[], const CFRunDat
     if (!msg[0][0]) WriteTemp(dir, "profiles.csv", ProfilesBody, prof, msg[0], sizeof(msg[0]));
   }
   if (rank == size - 1) WriteTemp(dir, "pt_paths.csv", PathsBody, paths, msg[1], sizeof(msg[1]));
-  PetscCallMPI(MPI_Bcast(msg[0], sizeof(msg[0]), MPI_CHAR, 0, comm));
-  PetscCallMPI(MPI_Bcast(msg[1], sizeof(msg[1]), MPI_CHAR, size - 1, comm));
+  PetscCall(ShareOutcome(comm, size, msg));
   ok = (PetscBool)(!msg[0][0] && !msg[1][0]);
   if (!rank) {
     Publish(dir, "summary.csv", ok, msg[0], sizeof(msg[0]));
     Publish(dir, "profiles.csv", ok, msg[0], sizeof(msg[0]));
   }
   if (rank == size - 1) Publish(dir, "pt_paths.csv", ok, msg[1], sizeof(msg[1]));
-  if (ok) { /* a rename's failure */
-    PetscCallMPI(MPI_Bcast(msg[0], sizeof(msg[0]), MPI_CHAR, 0, comm));
-    PetscCallMPI(MPI_Bcast(msg[1], sizeof(msg[1]), MPI_CHAR, size - 1, comm));
-  }
+  if (ok) PetscCall(ShareOutcome(comm, size, msg)); /* a rename's failure */
   PetscCheck(!msg[0][0], comm, PETSC_ERR_FILE_WRITE, "%s", msg[0]);
   PetscCheck(!msg[1][0], comm, PETSC_ERR_FILE_WRITE, "%s", msg[1]);
   PetscFunctionReturn(0);
