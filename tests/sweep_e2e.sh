@@ -1,8 +1,9 @@
 #!/bin/bash
 # End-to-end checks of `crustforge sweep` (DESIGN 4, Sweeps), one mode per ctest:
 #  ranks   the small sweep (tests/sweep/small.yaml, continuation on) gives the same sweep.csv
-#          numbers on 1 rank and on 2 ranks in 2 groups, and each row equals a single
-#          `crustforge run` of that case.  Continuation changes only the initial guess, so the
+#          numbers on 1 rank and on 2 ranks in 2 groups, each row equals a single
+#          `crustforge run` of that case, and a run on 3 OpenMP threads equals it on 1.
+#          Continuation changes only the initial guess, so the
 #          answers agree to the solver's tolerance (an RMS residual of 1e-6 K per unknown:
 #          measured differences up to 4e-8 relative): compared to 1e-6 relative (1e-9 km
 #          absolute for zero crust).  nonlinear_iterations and solve_seconds
@@ -57,8 +58,16 @@ PY
 case $mode in
 ranks)
   np1 sweep "$small" -output_dir "$tmp/np1" >"$tmp/np1.log" 2>&1 || { cat "$tmp/np1.log"; fail "sweep on 1 rank"; exit 1; }
-  "$CF_MPIEXEC" -n 2 --bind-to none "$CRUSTFORGE" sweep "$small" -output_dir "$tmp/np2" -sweep_ranks_per_case 1 >"$tmp/np2.log" 2>&1 || { cat "$tmp/np2.log"; fail "sweep on 2 ranks"; exit 1; }
+  # OMP_NUM_THREADS unset: each rank takes its share of the node's processors as OpenMP threads
+  # (at least one; common practice, no source), so the comparison below also covers the thread
+  # count; a user's OMP_NUM_THREADS wins (the OpenMP API's nthreads-var, OpenMP 5.2 section 21.1.2)
+  env -u OMP_NUM_THREADS "$CF_MPIEXEC" -n 2 --bind-to none "$CRUSTFORGE" sweep "$small" -output_dir "$tmp/np2" -sweep_ranks_per_case 1 >"$tmp/np2.log" 2>&1 || { cat "$tmp/np2.log"; fail "sweep on 2 ranks"; exit 1; }
   grep -q "2 groups of 1 rank" "$tmp/np2.log" && ok "2 ranks split into 2 groups" || fail "2 ranks not in 2 groups"
+  procs=$(env -u OMP_NUM_THREADS nproc) # nproc itself honours OMP_NUM_THREADS
+  share=$((procs / 2)); [ "$share" -ge 1 ] || share=1
+  grep -q "^parallel: 2 MPI ranks x $share OpenMP thread" "$tmp/np2.log" && ok "2 ranks x $share OpenMP thread(s) each by default on $procs processors" || fail "default threads: $(grep '^parallel' "$tmp/np2.log")"
+  OMP_NUM_THREADS=3 np1 run "$small" -ridge_full_spreading_rate 30 -mantle_potential_temperature 1300 -output_dir "$tmp/threads3" -output_figures false >"$tmp/threads3.log" 2>&1 || { cat "$tmp/threads3.log"; fail "run with 3 threads"; }
+  grep -q "^parallel: 1 MPI rank x 3 OpenMP threads$" "$tmp/threads3.log" && ok "OMP_NUM_THREADS=3 kept" || fail "OMP_NUM_THREADS=3 not kept: $(grep '^parallel' "$tmp/threads3.log")"
   [ "$(grep -c ',ok,' "$tmp/np1/sweep.csv")" = 6 ] && ok "6 cases ok" || fail "sweep.csv lacks 6 ok rows"
   r=$(same "$tmp/np1/sweep.csv" "$tmp/np2/sweep.csv") && ok "1 rank = 2 groups ($r)" || fail "1 rank and 2 groups differ: $r"
   # each row against a single run of its case
@@ -68,6 +77,7 @@ ranks)
     if [ -s "$tmp/runs.csv" ]; then tail -1 "$tmp/run_${V}_$T/summary.csv" >>"$tmp/runs.csv"; else cat "$tmp/run_${V}_$T/summary.csv" >"$tmp/runs.csv"; fi
   done; done
   r=$(same "$tmp/np1/sweep.csv" "$tmp/runs.csv") && ok "every sweep row = a single run of its case ($r)" || fail "sweep rows differ from single runs: $r"
+  r=$(same "$tmp/threads3/summary.csv" "$tmp/run_30_1300/summary.csv") && ok "3 threads = 1 thread ($r)" || fail "3 threads and 1 differ: $r"
   ;;
 resume)
   # run files make each case slow enough (~0.5 s) to kill the sweep part way

@@ -25,6 +25,9 @@ PETSC_EXTERN void CFReportError(const char prog[], PetscErrorCode ierr);
 /* Extend the heap by this rank's share of the run's expected peak memory on transparent huge
    pages, before the solver allocates (heap.c). Collective. */
 PETSC_EXTERN PetscErrorCode CFHeapReserve(MPI_Comm comm, const CFConfig *cfg);
+/* Unless OMP_NUM_THREADS is set, give each rank its node's processors divided among the node's
+   ranks as OpenMP threads (at least one); nthreads is the count in use (threads.c). Collective. */
+PETSC_EXTERN PetscErrorCode CFThreadsDefault(MPI_Comm comm, PetscInt *nthreads);
 
 /* Create cfg->output_dir (and parents).  Refuses a directory that already holds files unless
    output.overwrite is set, and a path that is not a directory. Collective. */

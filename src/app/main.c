@@ -82,6 +82,19 @@ static PetscErrorCode Resume(int argc, char **argv)
   PetscFunctionReturn(0);
 }
 
+/* The processes and threads a solving command runs on, set and said first. */
+static PetscErrorCode Parallel(void)
+{
+  PetscMPIInt size;
+  PetscInt    nt;
+
+  PetscFunctionBeginUser;
+  PetscCall(CFThreadsDefault(PETSC_COMM_WORLD, &nt));
+  PetscCallMPI(MPI_Comm_size(PETSC_COMM_WORLD, &size));
+  PetscCall(PetscPrintf(PETSC_COMM_WORLD, "parallel: %d MPI rank%s x %d OpenMP thread%s%s\n", (int)size, size > 1 ? "s" : "", (int)nt, nt > 1 ? "s" : "", size > 1 ? " each" : ""));
+  PetscFunctionReturn(0);
+}
+
 int main(int argc, char **argv)
 {
   PetscErrorCode ierr;
@@ -131,11 +144,13 @@ int main(int argc, char **argv)
   if (PetscOptionsGetBool(NULL, NULL, "-debug_traceback", &traceback, NULL)) traceback = PETSC_FALSE;
   if (!traceback) PetscPushErrorHandler(PetscReturnErrorHandler, NULL);
 
-  if (!strcmp(cmd, "run")) ierr = Run(argc, argv);
-  else if (!strcmp(cmd, "resume")) ierr = Resume(argc, argv);
-  else if (!strcmp(cmd, "sweep")) ierr = Sweep(argc, argv);
-  else if (!strcmp(cmd, "check")) ierr = Check(argc, argv);
-  else ierr = NotAvailable(cmd);
+  if (!strcmp(cmd, "check")) ierr = Check(argc, argv);
+  else if (!(ierr = Parallel())) {
+    if (!strcmp(cmd, "run")) ierr = Run(argc, argv);
+    else if (!strcmp(cmd, "resume")) ierr = Resume(argc, argv);
+    else if (!strcmp(cmd, "sweep")) ierr = Sweep(argc, argv);
+    else ierr = NotAvailable(cmd);
+  }
   status = CFExitStatus(ierr);
   if (ierr) {
     PetscMPIInt rank = 0;
