@@ -28,6 +28,8 @@ static void Usage(FILE *fp)
         "                         figures to output.dir; a rerun resumes (see include/crustforge/sweep.h)\n"
         "Any scenario key may be given on the command line as -section_key value; it overrides the\n"
         "file.  PETSc's own options (-snes_*, -ksp_*, -pc_*, -log_view) work as usual.\n"
+        "OpenMP threads per MPI rank: OMP_NUM_THREADS if set, else the processors a rank may use\n"
+        "divided among the ranks on its node (at least one); the first line of a run says which.\n"
         "Exit status: 0 success, 2 bad input or refused request, 3 solver did not converge,\n"
         "4 interrupted after a checkpoint, 1 anything else.\n\n",
         fp);
