@@ -61,7 +61,7 @@ ranks)
   # OMP_NUM_THREADS unset: each rank takes its share of the node's processors as OpenMP threads
   # (at least one; common practice, no source), so the comparison below also covers the thread
   # count; a user's OMP_NUM_THREADS wins (OpenMP API 4.5, section 4.2; the libgomp manual,
-  # OMP_NUM_THREADS: "if undefined one thread per CPU is used", hence the default here)
+  # OMP_NUM_THREADS: "if undefined one thread per CPU is used", in every rank)
   env -u OMP_NUM_THREADS "$CF_MPIEXEC" -n 2 --bind-to none "$CRUSTFORGE" sweep "$small" -output_dir "$tmp/np2" -sweep_ranks_per_case 1 >"$tmp/np2.log" 2>&1 || { cat "$tmp/np2.log"; fail "sweep on 2 ranks"; exit 1; }
   grep -q "2 groups of 1 rank" "$tmp/np2.log" && ok "2 ranks split into 2 groups" || fail "2 ranks not in 2 groups"
   procs=$(env -u OMP_NUM_THREADS nproc) # nproc itself honours OMP_NUM_THREADS
