@@ -5,10 +5,8 @@
    the user sets OMP_NUM_THREADS, each rank takes its share of the processors it may run on,
    divided among the ranks of its node, and at least one.  A user's OMP_NUM_THREADS always wins. */
 #include <stdlib.h>
+#include <omp.h>
 #include <crustforge/app.h>
-#if defined(_OPENMP)
-  #include <omp.h>
-#endif
 
 PetscErrorCode CFThreadsDefault(MPI_Comm comm, PetscInt *nthreads)
 {
@@ -21,12 +19,7 @@ PetscErrorCode CFThreadsDefault(MPI_Comm comm, PetscInt *nthreads)
   PetscCallMPI(MPI_Comm_split_type(comm, MPI_COMM_TYPE_SHARED, 0, MPI_INFO_NULL, &node));
   PetscCallMPI(MPI_Comm_size(node, &on_node));
   PetscCallMPI(MPI_Comm_free(&node));
-#if defined(_OPENMP)
   if (!env || !env[0]) omp_set_num_threads(PetscMax(1, omp_get_num_procs() / on_node));
   *nthreads = omp_get_max_threads();
-#else
-  (void)env;
-  *nthreads = 1;
-#endif
   PetscFunctionReturn(0);
 }
